@@ -1,0 +1,2 @@
+" avow study files
+autocmd BufRead,BufNewFile *.avow setfiletype avow

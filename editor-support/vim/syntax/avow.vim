@@ -1,0 +1,27 @@
+" Vim syntax for avow study files (*.avow).
+" Install: copy the ftdetect/ and syntax/ folders into ~/.vim/ (or a pack directory).
+if exists("b:current_syntax")
+  finish
+endif
+
+syn keyword avowStatement study response factor data alpha adjust orthogonal contrast explore plan
+syn keyword avowKeyword   unit at code from missing sha256 delimiter pairs versus replicates sigma detect power seed
+syn keyword avowFunction  mean trend
+syn keyword avowMethod    none bonferroni holm sidak scheffe fdr
+syn match   avowNumber    "\<\d\+\(\.\d\+\)\=\([eE][+-]\=\d\+\)\=\>"
+syn match   avowEscape    contained "\\[\"\\nt]"
+syn region  avowString    start=+"+ skip=+\\\\\|\\"+ end=+"+ oneline contains=avowEscape
+syn match   avowComment   "#.*$" contains=@Spell
+syn match   avowOperator  "[-+*/=<>]"
+
+hi def link avowStatement Statement
+hi def link avowKeyword   Keyword
+hi def link avowFunction  Function
+hi def link avowMethod    Constant
+hi def link avowNumber    Number
+hi def link avowString    String
+hi def link avowEscape    SpecialChar
+hi def link avowComment   Comment
+hi def link avowOperator  Operator
+
+let b:current_syntax = "avow"

@@ -1,0 +1,29 @@
+/* render.h: renderers of the plan review (text, JSON) and the canonical formatter.
+ * No numerics beyond formatting; output goes to a strbuf, the driver writes it. */
+#ifndef AVOW_RENDER_H
+#define AVOW_RENDER_H
+
+#include "avow/ast.h"
+#include "avow/plan.h"
+
+#define AVOW_VERSION "0.1.0"
+
+/* The plan review for people. */
+void render_plan_text(const avow_ctx *ctx, const avow_plan *plan, strbuf *out);
+/* The plan as `avow.plan/1` JSON; when the study has errors, only the diagnostics. */
+void render_plan_json(const avow_ctx *ctx, const avow_plan *plan, int ok, strbuf *out);
+
+/* The canonical form of a study file, comments kept. */
+void fmt_study(const avow_ctx *ctx, const ast_study *study, strbuf *out);
+/* An expression in canonical form. */
+void fmt_expr(const ast_expr *e, strbuf *out);
+/* A name, quoted when it is not a plain identifier or is a keyword. */
+void fmt_name(const char *s, size_t len, int force_quote, strbuf *out);
+/* A string literal with escapes. */
+void fmt_string(const char *s, size_t len, strbuf *out);
+
+/* JSON helpers shared by the JSON renderers. */
+void json_string(strbuf *out, const char *s);
+void json_number(strbuf *out, double v);
+
+#endif

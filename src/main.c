@@ -1,0 +1,202 @@
+/* main.c: the avow command. A thin driver over libavow: parses the command line, runs
+ * the stages, prints diagnostics and writes output. The only place that prints. */
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "avow/plan.h"
+#include "avow/render.h"
+#include "avow/syntax.h"
+
+enum { EXIT_STUDY = 1, EXIT_DATA = 2, EXIT_USAGE = 64 };
+
+static const char usage_text[] =
+    "usage: avow COMMAND [ARGS]\n"
+    "\n"
+    "commands:\n"
+    "  check STUDY [--format text|json]   review the plan of a study file; reads no data\n"
+    "  fmt STUDY [-w]                     print the canonical form; -w rewrites the file\n"
+    "  help [COMMAND]                     describe a command\n"
+    "\n"
+    "options:\n"
+    "  --help       this text\n"
+    "  --version    the version of avow\n"
+    "\n"
+    "exit status: 0 success, 1 the study file has errors, 2 the data do not fit the study,\n"
+    "64 the command line is wrong.\n";
+
+static const char help_check[] =
+    "usage: avow check STUDY [--format text|json]\n"
+    "\n"
+    "Reads the study file and reviews its plan without any data: the response, the factor\n"
+    "and its levels, every planned and exploratory contrast as exact fractions with its\n"
+    "sum check, the orthogonality of the planned contrasts, the family plan (how alpha is\n"
+    "shared), and the design assumptions of the plan block.\n"
+    "\n"
+    "Errors and warnings go to standard error as FILE:LINE:COL: error: message, with the\n"
+    "source line and carets. The review goes to standard output.\n"
+    "\n"
+    "  --format text   the review for people (default)\n"
+    "  --format json   the review as avow.plan/1 JSON; with errors, only the diagnostics\n"
+    "\n"
+    "exit status: 0 no errors (warnings allowed), 1 errors, 64 command-line misuse.\n";
+
+static const char help_fmt[] =
+    "usage: avow fmt STUDY [-w]\n"
+    "\n"
+    "Prints the study file in canonical form: one statement per line, block items indented\n"
+    "by four spaces, one level per line, minimal parentheses, comments kept in place and\n"
+    "single blank lines kept where they were. Formatting twice changes nothing, and the\n"
+    "formatted file checks to the same plan.\n"
+    "\n"
+    "  -w   rewrite STUDY in place (atomically) instead of printing; untouched when\n"
+    "       already canonical\n"
+    "\n"
+    "exit status: 0 done, 1 the file has syntax errors, 64 command-line misuse.\n";
+
+static int usage_error(const char *fmt, const char *arg)
+{
+    fprintf(stderr, "avow: ");
+    fprintf(stderr, fmt, arg);
+    fprintf(stderr, "\n(run `avow --help` for usage)\n");
+    return EXIT_USAGE;
+}
+
+static void write_stdout(const strbuf *b)
+{
+    if (b->len) fwrite(b->s, 1, b->len, stdout);
+    fflush(stdout);
+}
+
+static void print_diags(const avow_ctx *ctx)
+{
+    strbuf b = {0};
+    diag_render(ctx, &b);
+    if (b.len) fwrite(b.s, 1, b.len, stderr);
+    sb_free(&b);
+}
+
+/* Load a study file into ctx; prints the reason and returns nonzero on failure. */
+static int load(avow_ctx *ctx, const char *path)
+{
+    int rc = ctx_load(ctx, path);
+    if (rc == AVOW_ENOMEM) { fprintf(stderr, "avow: out of memory reading %s\n", path); return 1; }
+    if (rc) {
+        fprintf(stderr, "avow: cannot read %s: %s\n", path,
+                errno == EFBIG ? "larger than the 16 MiB a study file may have" : strerror(errno));
+        return 1;
+    }
+    return 0;
+}
+
+static int cmd_check(int argc, char **argv)
+{
+    const char *path = NULL;
+    int json = 0;
+    for (int i = 0; i < argc; i++) {
+        const char *a = argv[i];
+        if (strcmp(a, "--format") == 0 || strncmp(a, "--format=", 9) == 0) {
+            const char *v = a[8] == '=' ? a + 9 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!v) return usage_error("--format needs a value: text or json%s", "");
+            if (strcmp(v, "json") == 0) json = 1;
+            else if (strcmp(v, "text") == 0) json = 0;
+            else return usage_error("unknown format `%s`; the formats are text and json", v);
+        } else if (strcmp(a, "--help") == 0) {
+            fputs(help_check, stdout);
+            return 0;
+        } else if (a[0] == '-' && a[1]) {
+            return usage_error("check: unknown option `%s`", a);
+        } else if (path) {
+            return usage_error("check: one study file at a time (also given: `%s`)", a);
+        } else {
+            path = a;
+        }
+    }
+    if (!path) return usage_error("check: which study file?%s", "");
+    avow_ctx ctx;
+    if (load(&ctx, path)) return EXIT_STUDY;
+    ast_study study;
+    avow_plan plan;
+    memset(&plan, 0, sizeof plan);
+    plan.path = path;
+    int ok = parse_study(&ctx, &study) == 0;
+    if (ok) ok = check_study(&ctx, &study, &plan) == 0;
+    if (ctx.oom) {
+        fprintf(stderr, "avow: out of memory\n");
+        ctx_free(&ctx);
+        return EXIT_STUDY;
+    }
+    print_diags(&ctx);
+    strbuf out = {0};
+    if (json) render_plan_json(&ctx, &plan, ok, &out);
+    else if (ok) render_plan_text(&ctx, &plan, &out);
+    int rc = ok ? 0 : EXIT_STUDY;
+    if (out.failed) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; }
+    else write_stdout(&out);
+    if (!ok && !json)
+        fprintf(stderr, "%s: %zu error%s, %zu warning%s\n", path, ctx.nerrors, ctx.nerrors == 1 ? "" : "s",
+                ctx.nwarnings, ctx.nwarnings == 1 ? "" : "s");
+    sb_free(&out);
+    ctx_free(&ctx);
+    return rc;
+}
+
+static int cmd_fmt(int argc, char **argv)
+{
+    const char *path = NULL;
+    int write = 0;
+    for (int i = 0; i < argc; i++) {
+        const char *a = argv[i];
+        if (strcmp(a, "-w") == 0) write = 1;
+        else if (strcmp(a, "--help") == 0) { fputs(help_fmt, stdout); return 0; }
+        else if (a[0] == '-' && a[1]) return usage_error("fmt: unknown option `%s`", a);
+        else if (path) return usage_error("fmt: one study file at a time (also given: `%s`)", a);
+        else path = a;
+    }
+    if (!path) return usage_error("fmt: which study file?%s", "");
+    avow_ctx ctx;
+    if (load(&ctx, path)) return EXIT_STUDY;
+    ast_study study;
+    if (parse_study(&ctx, &study) != 0) {
+        if (ctx.oom) fprintf(stderr, "avow: out of memory\n");
+        print_diags(&ctx);
+        ctx_free(&ctx);
+        return EXIT_STUDY;
+    }
+    strbuf out = {0};
+    fmt_study(&ctx, &study, &out);
+    int rc = 0;
+    if (out.failed) {
+        fprintf(stderr, "avow: out of memory\n");
+        rc = EXIT_STUDY;
+    } else if (!write) {
+        write_stdout(&out);
+    } else if (out.len != ctx.len || memcmp(out.s ? out.s : "", ctx.src, out.len) != 0) {
+        if (avow_write_atomic(path, out.s ? out.s : "", out.len)) {
+            fprintf(stderr, "avow: cannot write %s: %s\n", path, strerror(errno));
+            rc = EXIT_STUDY;
+        }
+    }
+    sb_free(&out);
+    ctx_free(&ctx);
+    return rc;
+}
+
+int main(int argc, char **argv)
+{
+    if (argc < 2) { fputs(usage_text, stderr); return EXIT_USAGE; }
+    const char *cmd = argv[1];
+    if (strcmp(cmd, "--help") == 0 || strcmp(cmd, "-h") == 0) { fputs(usage_text, stdout); return 0; }
+    if (strcmp(cmd, "--version") == 0) { printf("avow %s\n", AVOW_VERSION); return 0; }
+    if (strcmp(cmd, "check") == 0) return cmd_check(argc - 2, argv + 2);
+    if (strcmp(cmd, "fmt") == 0) return cmd_fmt(argc - 2, argv + 2);
+    if (strcmp(cmd, "help") == 0) {
+        if (argc < 3) { fputs(usage_text, stdout); return 0; }
+        if (strcmp(argv[2], "check") == 0) { fputs(help_check, stdout); return 0; }
+        if (strcmp(argv[2], "fmt") == 0) { fputs(help_fmt, stdout); return 0; }
+        if (strcmp(argv[2], "help") == 0) { fputs(usage_text, stdout); return 0; }
+        return usage_error("help: no command `%s`; the commands are check, fmt and help", argv[2]);
+    }
+    return usage_error("unknown command `%s`; the commands are check, fmt and help", cmd);
+}

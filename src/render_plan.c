@@ -1,0 +1,492 @@
+/* render_plan.c: the plan review of `avow check`, as text for people and as
+ * avow.plan/1 JSON for machines. No numerics: everything comes from the Plan. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "avow/render.h"
+#include "table.h"
+
+/* A short decimal for thresholds: up to 4 significant digits, no exponent above 1e-5. */
+static void put_level_value(strbuf *o, double v)
+{
+    char buf[64];
+    snprintf(buf, sizeof buf, "%.4g", v);
+    sb_puts(o, buf);
+}
+
+static const char *side_words(ast_side s)
+{
+    switch (s) {
+    case SIDE_GREATER: return "one-sided, > 0";
+    case SIDE_LESS: return "one-sided, < 0";
+    default: return "two-sided";
+    }
+}
+
+static void rat_cell(text_table *t, size_t col, avow_rat r)
+{
+    char buf[48];
+    rat_format(r, buf, sizeof buf);
+    table_cell(t, col, "%s", buf);
+}
+
+static void heading(strbuf *o, const char *title)
+{
+    sb_printf(o, "\n%s\n", title);
+    sb_pad(o, '-', utf8_width(title, strlen(title)));
+    sb_putc(o, '\n');
+}
+
+/* Coefficient rows of a list of contrasts. */
+static void contrast_table(const avow_plan *p, const plan_contrast *cs, size_t n, strbuf *o)
+{
+    size_t nc = p->ncells + 3;
+    char align[72];
+    memset(align, 'r', sizeof align);
+    align[0] = 'l';
+    align[nc - 1] = 'l';
+    if (nc > 64) { sb_puts(o, "   (too many levels to tabulate; see the JSON plan)\n"); return; }
+    text_table t;
+    table_init(&t, nc, align);
+    table_row(&t);
+    table_cell(&t, 0, "contrast");
+    for (size_t c = 0; c < p->ncells; c++) table_cell(&t, c + 1, "%s", plan_cell_name(p, c));
+    table_cell(&t, nc - 2, "sum");
+    table_cell(&t, nc - 1, "test");
+    for (size_t i = 0; i < n; i++) {
+        const plan_contrast *pc = &cs[i];
+        table_row(&t);
+        table_cell(&t, 0, "%s", pc->name);
+        if (!pc->valid || !pc->coef) {
+            table_cell(&t, 1, "(has errors)");
+            continue;
+        }
+        avow_rat sum = RAT_ZERO;
+        for (size_t c = 0; c < p->ncells; c++) {
+            rat_cell(&t, c + 1, pc->coef[c]);
+            rat_add(sum, pc->coef[c], &sum);
+        }
+        rat_cell(&t, nc - 2, sum);
+        table_cell(&t, nc - 1, "%s", side_words(pc->side));
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+    sb_putc(o, '\n');
+    for (size_t i = 0; i < n; i++) {
+        sb_printf(o, "   %s = %s", cs[i].name, cs[i].expr);
+        if (cs[i].side == SIDE_GREATER) sb_puts(o, " > 0");
+        if (cs[i].side == SIDE_LESS) sb_puts(o, " < 0");
+        sb_putc(o, '\n');
+        if (cs[i].desc) sb_printf(o, "      %s\n", cs[i].desc);
+    }
+}
+
+static void family_text(const avow_plan *p, strbuf *o)
+{
+    size_t m = p->family_m;
+    sb_printf(o, "   alpha %s shared by %zu planned contrast%s, method %s\n", p->alpha_text, m,
+              m == 1 ? "" : "s", mult_name(p->adjust));
+    if (!m) return;
+    double a = m ? p->family_levels ? p->family_levels[m - 1] : 0 : 0;
+    switch (p->adjust) {
+    case ADJ_NONE:
+        sb_printf(o, "   Each contrast is tested on its own at %s; nothing bounds the chance of at least\n"
+                     "   one false finding in the family.\n", p->alpha_text);
+        break;
+    case ADJ_BONFERRONI:
+        sb_puts(o, "   Each contrast is declared a difference when its p-value is at most alpha/m = ");
+        put_level_value(o, a);
+        sb_puts(o, ".\n   Controls the chance of any false finding in the family (family-wise error rate).\n");
+        break;
+    case ADJ_SIDAK:
+        sb_puts(o, "   Each contrast is declared a difference when its p-value is at most 1 - (1 - alpha)^(1/m) = ");
+        put_level_value(o, a);
+        sb_puts(o, ".\n   Controls the family-wise error rate exactly for independent tests.\n");
+        break;
+    case ADJ_HOLM:
+        sb_puts(o, "   Step-down: sort the p-values from smallest; compare them in turn with ");
+        for (size_t r = 0; r < m; r++) {
+            if (r) sb_puts(o, r + 1 == m ? " and " : ", ");
+            put_level_value(o, p->family_levels[r]);
+        }
+        sb_puts(o, ".\n   Stop at the first p-value above its level: it and every larger one stand.\n"
+                   "   Controls the family-wise error rate.\n");
+        break;
+    case ADJ_FDR:
+        sb_puts(o, "   Step-up: sort the p-values from smallest; find the largest rank r whose p-value is at\n"
+                   "   most r*alpha/m (");
+        for (size_t r = 0; r < m; r++) {
+            if (r) sb_puts(o, ", ");
+            put_level_value(o, p->family_levels[r]);
+        }
+        sb_puts(o, "); that p-value and every smaller one are findings.\n"
+                   "   Controls the expected share of false findings among the findings (false discovery rate).\n");
+        break;
+    case ADJ_SCHEFFE:
+        sb_puts(o, "   A contrast is declared a difference when |t| exceeds sqrt((k - 1) * F), with F the upper\n"
+                   "   alpha point of the F distribution on k - 1 and N - k degrees of freedom");
+        if (p->scheffe_crit > 0)
+            sb_printf(o, ";\n   with the %lld planned runs that is |t| > %.4f", (long long)p->planned_runs,
+                      p->scheffe_crit);
+        sb_puts(o, ".\n   Holds for every contrast at once, including ones chosen after seeing the data.\n");
+        break;
+    }
+    int any = 0;
+    for (size_t i = 0; i < p->ncontrasts; i++)
+        if (p->contrasts[i].valid && p->contrasts[i].side != SIDE_TWO) {
+            sb_printf(o, "%s%s", any ? ", " : "   One-sided contrasts use their one-sided p-value: ", p->contrasts[i].name);
+            any = 1;
+        }
+    if (any) sb_puts(o, ".\n");
+}
+
+void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
+{
+    sb_printf(o, "avow %s -- plan review (no data read)\n\n", AVOW_VERSION);
+    text_table t;
+    table_init(&t, 2, "ll");
+    table_row(&t); table_cell(&t, 0, "study"); table_cell(&t, 1, "%s", p->title ? p->title : "");
+    table_row(&t); table_cell(&t, 0, "file"); table_cell(&t, 1, "%s", p->path);
+    table_row(&t); table_cell(&t, 0, "response");
+    table_cell(&t, 1, "%s%s%s%s%s%s", p->response ? p->response : "",
+               p->response_label ? " \"" : "", p->response_label ? p->response_label : "",
+               p->response_label ? "\"" : "", p->unit ? ", in " : "", p->unit ? p->unit : "");
+    table_row(&t); table_cell(&t, 0, "data");
+    if (p->has_data) {
+        strbuf d = {0};
+        sb_printf(&d, "%s; columns", p->data_path);
+        for (size_t i = 0; i <= p->nfactors; i++)
+            sb_printf(&d, "%s \"%s\" for %s", i ? "," : "", p->columns[i],
+                      i < p->nfactors ? p->factors[i].name : p->response);
+        sb_puts(&d, "; missing");
+        for (size_t i = 0; i < p->nmissing; i++) sb_printf(&d, " \"%s\"", p->missing[i]);
+        sb_printf(&d, "; %s", p->sha256 ? "locked by sha256" : "not locked");
+        table_cell(&t, 1, "%s", d.s ? d.s : "");
+        sb_free(&d);
+    } else {
+        table_cell(&t, 1, "not named yet (needed by `avow run`)");
+    }
+    table_render(&t, 0, o);
+    table_free(&t);
+
+    for (size_t fi = 0; fi < p->nfactors; fi++) {
+        const plan_factor *f = &p->factors[fi];
+        strbuf h = {0};
+        sb_printf(&h, "Factor %s%s%s%s: %zu levels", f->name, f->label ? " \"" : "",
+                  f->label ? f->label : "", f->label ? "\"" : "", f->nlevels);
+        heading(o, h.s ? h.s : "Factor");
+        sb_free(&h);
+        table_init(&t, 5, "lrlrl");
+        table_row(&t);
+        table_cell(&t, 0, "level"); table_cell(&t, 1, "at"); table_cell(&t, 2, "label in data");
+        table_cell(&t, 3, "planned n"); table_cell(&t, 4, "description");
+        for (size_t i = 0; i < f->nlevels; i++) {
+            const plan_level *l = &f->levels[i];
+            table_row(&t);
+            table_cell(&t, 0, "%s", l->name);
+            table_cell(&t, 1, "%s", l->has_at ? l->at_text : "-");
+            table_cell(&t, 2, "%s", l->code ? l->code : l->name);
+            if (p->replicates) table_cell(&t, 3, "%lld", (long long)p->replicates[i]);
+            else table_cell(&t, 3, "-");
+            table_cell(&t, 4, "%s", l->desc ? l->desc : "");
+        }
+        table_render(&t, 3, o);
+        table_free(&t);
+    }
+
+    size_t df = p->ncells ? p->ncells - 1 : 0;
+    strbuf h = {0};
+    sb_printf(&h, "Planned contrasts: %zu, with %zu degree%s of freedom between levels", p->ncontrasts, df,
+              df == 1 ? "" : "s");
+    heading(o, h.s ? h.s : "Planned contrasts");
+    sb_free(&h);
+    if (p->ncontrasts) contrast_table(p, p->contrasts, p->ncontrasts, o);
+    else sb_puts(o, "   none declared: the run will report the ANOVA table only\n");
+
+    if (p->ncontrasts > 1 && p->ortho) {
+        heading(o, p->replicates ? "Orthogonality: sum of c*d/n over levels, planned replicates"
+                                 : "Orthogonality: sum of c*d/n over levels, equal replicates");
+        size_t m = p->ncontrasts;
+        if (m + 1 <= 64) {
+            char align[65];
+            memset(align, 'r', sizeof align);
+            align[0] = 'l';
+            table_init(&t, m + 1, align);
+            table_row(&t);
+            for (size_t j = 0; j < m; j++) table_cell(&t, j + 1, "%s", p->contrasts[j].name);
+            size_t bad = 0;
+            for (size_t i = 0; i < m; i++) {
+                table_row(&t);
+                table_cell(&t, 0, "%s", p->contrasts[i].name);
+                for (size_t j = 0; j < m; j++) {
+                    if (!p->contrasts[i].valid || !p->contrasts[j].valid) { table_cell(&t, j + 1, "?"); continue; }
+                    if (i == j) { table_cell(&t, j + 1, "."); continue; }
+                    rat_cell(&t, j + 1, p->ortho[i * m + j]);
+                    if (j < i && !rat_is_zero(p->ortho[i * m + j])) bad++;
+                }
+            }
+            table_render(&t, 3, o);
+            table_free(&t);
+            if (bad) sb_printf(o, "   %zu pair%s not orthogonal: their tests share information.\n", bad,
+                               bad == 1 ? " is" : "s are");
+            else sb_puts(o, "   Every pair is orthogonal: the contrasts ask separate questions.\n");
+        }
+    }
+
+    if (p->explore_pairs || p->has_versus || p->nexplores) {
+        heading(o, "Exploratory comparisons (reported apart from the planned family, always adjusted)");
+        size_t k = p->ncells;
+        if (p->explore_pairs)
+            sb_printf(o, "   every pair of levels: %zu comparisons, Tukey-Kramer\n", k * (k - 1) / 2);
+        if (p->has_versus)
+            sb_printf(o, "   every level against %s: %zu comparisons, Dunnett\n",
+                      plan_cell_name(p, p->versus_cell), k - 1);
+        if (p->nexplores) {
+            sb_printf(o, "   %zu contrast%s chosen after seeing data, Scheffe:\n\n", p->nexplores,
+                      p->nexplores == 1 ? "" : "s");
+            contrast_table(p, p->explores, p->nexplores, o);
+        }
+    }
+
+    heading(o, "Family plan");
+    family_text(p, o);
+
+    if (p->has_plan) {
+        heading(o, "Design assumptions (plan block)");
+        table_init(&t, 2, "ll");
+        if (p->replicates) {
+            int equal = 1;
+            for (size_t i = 1; i < p->ncells; i++) equal &= p->replicates[i] == p->replicates[0];
+            table_row(&t); table_cell(&t, 0, "replicates");
+            if (equal && p->ncells)
+                table_cell(&t, 1, "%lld per level, %lld runs", (long long)p->replicates[0],
+                           (long long)p->planned_runs);
+            else table_cell(&t, 1, "as listed above, %lld runs", (long long)p->planned_runs);
+        }
+        if (p->has_sigma) { table_row(&t); table_cell(&t, 0, "sigma"); table_cell(&t, 1, "%s", p->sigma_text); }
+        if (p->has_detect) { table_row(&t); table_cell(&t, 0, "detect"); table_cell(&t, 1, "%s", p->detect_text); }
+        if (p->has_power) { table_row(&t); table_cell(&t, 0, "power"); table_cell(&t, 1, "%s", p->power_text); }
+        if (p->has_seed) { table_row(&t); table_cell(&t, 0, "seed"); table_cell(&t, 1, "%llu", (unsigned long long)p->seed); }
+        table_render(&t, 3, o);
+        table_free(&t);
+    }
+
+    heading(o, "Findings");
+    sb_printf(o, "   %zu error%s, %zu warning%s\n", ctx->nerrors, ctx->nerrors == 1 ? "" : "s",
+              ctx->nwarnings, ctx->nwarnings == 1 ? "" : "s");
+    for (size_t i = 0; i < ctx->ndiags; i++) {
+        unsigned line, col;
+        ctx_line_col(ctx, ctx->diags[i].span.start, &line, &col);
+        sb_printf(o, "   line %u: %s: %s\n", line, ctx->diags[i].sev == DIAG_ERROR ? "error" : "warning",
+                  ctx->diags[i].msg);
+    }
+}
+
+/* ---- JSON ---- */
+
+void json_string(strbuf *o, const char *s)
+{
+    if (!s) { sb_puts(o, "null"); return; }
+    sb_putc(o, '"');
+    for (; *s; s++) {
+        unsigned char c = (unsigned char)*s;
+        switch (c) {
+        case '"': sb_puts(o, "\\\""); break;
+        case '\\': sb_puts(o, "\\\\"); break;
+        case '\n': sb_puts(o, "\\n"); break;
+        case '\t': sb_puts(o, "\\t"); break;
+        case '\r': sb_puts(o, "\\r"); break;
+        default:
+            if (c < 0x20 || c == 0x7f) sb_printf(o, "\\u%04x", c);
+            else sb_putc(o, (char)c);
+        }
+    }
+    sb_putc(o, '"');
+}
+
+void json_number(strbuf *o, double v)
+{
+    if (!isfinite(v)) { sb_puts(o, "null"); return; }
+    if (v == 0) { sb_puts(o, "0"); return; }
+    if (v == floor(v) && fabs(v) < 1e15) { sb_printf(o, "%.0f", v); return; }
+    sb_printf(o, "%.17g", v);
+}
+
+static void json_rat(strbuf *o, avow_rat r)
+{
+    json_number(o, rat_to_double(r));
+}
+
+static void json_rat_str(strbuf *o, avow_rat r)
+{
+    char buf[48];
+    rat_format(r, buf, sizeof buf);
+    json_string(o, buf);
+}
+
+static void json_contrasts(const avow_plan *p, const plan_contrast *cs, size_t n, strbuf *o)
+{
+    sb_putc(o, '[');
+    for (size_t i = 0; i < n; i++) {
+        const plan_contrast *pc = &cs[i];
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        sb_puts(o, "\"name\": "); json_string(o, pc->name);
+        sb_puts(o, ", \"description\": "); json_string(o, pc->desc);
+        sb_puts(o, ", \"expression\": "); json_string(o, pc->expr);
+        sb_puts(o, ", \"alternative\": ");
+        json_string(o, pc->side == SIDE_GREATER ? "greater" : pc->side == SIDE_LESS ? "less" : "two-sided");
+        sb_printf(o, ", \"valid\": %s", pc->valid ? "true" : "false");
+        if (pc->valid) {
+            sb_puts(o, ",\n     \"coefficients\": {");
+            for (size_t c = 0; c < p->ncells; c++) {
+                if (c) sb_puts(o, ", ");
+                json_string(o, plan_cell_name(p, c)); sb_puts(o, ": "); json_rat(o, pc->coef[c]);
+            }
+            sb_puts(o, "},\n     \"coefficients_exact\": {");
+            for (size_t c = 0; c < p->ncells; c++) {
+                if (c) sb_puts(o, ", ");
+                json_string(o, plan_cell_name(p, c)); sb_puts(o, ": "); json_rat_str(o, pc->coef[c]);
+            }
+            sb_putc(o, '}');
+        }
+        sb_putc(o, '}');
+    }
+    sb_puts(o, n ? "\n  ]" : "]");
+}
+
+static void json_diagnostics(const avow_ctx *ctx, strbuf *o)
+{
+    sb_puts(o, "\"diagnostics\": [");
+    for (size_t i = 0; i < ctx->ndiags; i++) {
+        const avow_diag *d = &ctx->diags[i];
+        unsigned line, col;
+        ctx_line_col(ctx, d->span.start, &line, &col);
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        sb_printf(o, "\"severity\": \"%s\", \"line\": %u, \"column\": %u, \"message\": ",
+                  d->sev == DIAG_ERROR ? "error" : "warning", line, col);
+        json_string(o, d->msg);
+        sb_puts(o, ", \"hint\": ");
+        json_string(o, d->hint);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, ctx->ndiags ? "\n  ]" : "]");
+}
+
+void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o)
+{
+    sb_puts(o, "{\n  \"format\": \"avow.plan/1\",\n");
+    sb_printf(o, "  \"tool\": {\"name\": \"avow\", \"version\": \"%s\"},\n", AVOW_VERSION);
+    sb_printf(o, "  \"ok\": %s,\n  ", ok ? "true" : "false");
+    json_diagnostics(ctx, o);
+    if (!ok) { sb_puts(o, "\n}\n"); return; }
+    sb_puts(o, ",\n  \"study\": {\"title\": "); json_string(o, p->title);
+    sb_puts(o, ", \"path\": "); json_string(o, p->path);
+    sb_puts(o, "},\n  \"response\": {\"name\": "); json_string(o, p->response);
+    sb_puts(o, ", \"label\": "); json_string(o, p->response_label);
+    sb_puts(o, ", \"unit\": "); json_string(o, p->unit);
+    sb_puts(o, "},\n  \"factors\": [");
+    for (size_t fi = 0; fi < p->nfactors; fi++) {
+        sb_puts(o, fi ? ", {" : "{");
+        sb_puts(o, "\"name\": "); json_string(o, p->factors[fi].name);
+        sb_puts(o, ", \"label\": "); json_string(o, p->factors[fi].label);
+        sb_printf(o, ", \"levels\": %zu}", p->factors[fi].nlevels);
+    }
+    sb_puts(o, "],\n  \"levels\": [");
+    for (size_t fi = 0; fi < p->nfactors; fi++)
+        for (size_t i = 0; i < p->factors[fi].nlevels; i++) {
+            const plan_level *l = &p->factors[fi].levels[i];
+            sb_puts(o, i ? ",\n    {" : "\n    {");
+            sb_puts(o, "\"factor\": "); json_string(o, p->factors[fi].name);
+            sb_puts(o, ", \"level\": "); json_string(o, l->name);
+            sb_puts(o, ", \"code\": "); json_string(o, l->code);
+            sb_puts(o, ", \"at\": ");
+            if (l->has_at) json_rat(o, l->at); else sb_puts(o, "null");
+            sb_puts(o, ", \"at_exact\": ");
+            if (l->has_at) json_rat_str(o, l->at); else sb_puts(o, "null");
+            sb_puts(o, ", \"planned_n\": ");
+            if (p->replicates) sb_printf(o, "%lld", (long long)p->replicates[i]); else sb_puts(o, "null");
+            sb_puts(o, ", \"description\": "); json_string(o, l->desc);
+            sb_putc(o, '}');
+        }
+    sb_puts(o, "\n  ],\n  \"data\": ");
+    if (p->has_data) {
+        sb_puts(o, "{\"path\": "); json_string(o, p->data_path);
+        sb_puts(o, ", \"columns\": {");
+        for (size_t i = 0; i <= p->nfactors; i++) {
+            if (i) sb_puts(o, ", ");
+            json_string(o, i < p->nfactors ? p->factors[i].name : p->response);
+            sb_puts(o, ": ");
+            json_string(o, p->columns[i]);
+        }
+        sb_puts(o, "}, \"missing\": [");
+        for (size_t i = 0; i < p->nmissing; i++) { if (i) sb_puts(o, ", "); json_string(o, p->missing[i]); }
+        sb_puts(o, "], \"sha256\": "); json_string(o, p->sha256);
+        sb_puts(o, ", \"delimiter\": ");
+        if (p->delimiter) { char d[2] = {p->delimiter, 0}; json_string(o, d); } else sb_puts(o, "null");
+        sb_putc(o, '}');
+    } else {
+        sb_puts(o, "null");
+    }
+    sb_puts(o, ",\n  \"alpha\": "); json_rat(o, p->alpha);
+    sb_puts(o, ", \"alpha_exact\": "); json_rat_str(o, p->alpha);
+    sb_puts(o, ", \"adjust\": "); json_string(o, mult_name(p->adjust));
+    sb_printf(o, ", \"orthogonal_required\": %s,\n  \"contrasts\": ", p->orthogonal ? "true" : "false");
+    json_contrasts(p, p->contrasts, p->ncontrasts, o);
+    sb_puts(o, ",\n  \"orthogonality\": {\"contrasts\": [");
+    size_t m = p->ncontrasts;
+    for (size_t i = 0; i < m; i++) { if (i) sb_puts(o, ", "); json_string(o, p->contrasts[i].name); }
+    sb_puts(o, "],\n    \"products\": [");
+    for (size_t i = 0; i < m && p->ortho; i++) {
+        sb_puts(o, i ? ",\n      [" : "\n      [");
+        for (size_t j = 0; j < m; j++) {
+            if (j) sb_puts(o, ", ");
+            if (p->contrasts[i].valid && p->contrasts[j].valid) json_rat_str(o, p->ortho[i * m + j]);
+            else sb_puts(o, "null");
+        }
+        sb_putc(o, ']');
+    }
+    sb_puts(o, m ? "]},\n" : "]},\n");
+    sb_puts(o, "  \"explore\": [");
+    int first = 1;
+    size_t k = p->ncells;
+    if (p->explore_pairs) {
+        sb_printf(o, "\n    {\"method\": \"tukey-kramer\", \"comparisons\": %zu}", k * (k - 1) / 2);
+        first = 0;
+    }
+    if (p->has_versus) {
+        sb_printf(o, "%s\n    {\"method\": \"dunnett\", \"control\": ", first ? "" : ",");
+        json_string(o, plan_cell_name(p, p->versus_cell));
+        sb_printf(o, ", \"comparisons\": %zu}", k - 1);
+        first = 0;
+    }
+    if (p->nexplores) {
+        sb_printf(o, "%s\n    {\"method\": \"scheffe\", \"contrasts\": ", first ? "" : ",");
+        json_contrasts(p, p->explores, p->nexplores, o);
+        sb_putc(o, '}');
+        first = 0;
+    }
+    sb_puts(o, first ? "],\n" : "\n  ],\n");
+    sb_printf(o, "  \"family\": {\"method\": \"%s\", \"alpha\": ", mult_name(p->adjust));
+    json_rat(o, p->alpha);
+    sb_printf(o, ", \"m\": %zu, \"per_test_levels\": ", p->family_m);
+    if (p->family_levels) {
+        sb_putc(o, '[');
+        for (size_t i = 0; i < p->family_m; i++) { if (i) sb_puts(o, ", "); json_number(o, p->family_levels[i]); }
+        sb_putc(o, ']');
+    } else sb_puts(o, "null");
+    sb_puts(o, ", \"scheffe_critical_t\": ");
+    if (p->scheffe_crit > 0) json_number(o, p->scheffe_crit); else sb_puts(o, "null");
+    sb_puts(o, "},\n  \"plan\": ");
+    if (p->has_plan) {
+        sb_puts(o, "{\"runs\": ");
+        if (p->planned_runs) sb_printf(o, "%lld", (long long)p->planned_runs); else sb_puts(o, "null");
+        sb_puts(o, ", \"sigma\": "); if (p->has_sigma) json_rat(o, p->sigma); else sb_puts(o, "null");
+        sb_puts(o, ", \"detect\": "); if (p->has_detect) json_rat(o, p->detect); else sb_puts(o, "null");
+        sb_puts(o, ", \"power\": "); if (p->has_power) json_rat(o, p->power); else sb_puts(o, "null");
+        sb_puts(o, ", \"seed\": ");
+        if (p->has_seed) sb_printf(o, "%llu", (unsigned long long)p->seed); else sb_puts(o, "null");
+        sb_putc(o, '}');
+    } else sb_puts(o, "null");
+    sb_puts(o, "\n}\n");
+}
