@@ -9,6 +9,8 @@
 #include <math.h>
 #include <stdio.h>
 
+#include <openssl/bn.h>
+
 #include "avow/util.h"
 
 __extension__ typedef __int128 i128;
@@ -328,45 +330,144 @@ int rat_vec_proportional(const avow_rat *v, const avow_rat *w, size_t n)
     return 1;
 }
 
-/* sum_i n_i p_i q_i */
-static int trend_inner(const avow_rat *p, const avow_rat *q, const avow_rat *n, size_t k,
-                       avow_rat *out)
+/* ---- orthogonal-polynomial contrasts ----
+ * The lower-degree polynomials and their inner products can be far larger than the
+ * final coprime coefficients, so the construction runs on arbitrary-precision integers
+ * (OpenSSL's BIGNUM, already a dependency of libavow) and only the result has to fit
+ * int64. Every BN_ call below fails only when memory runs out. */
+
+static BIGNUM *bn_from_i64(BIGNUM *r, int64_t v)
 {
-    avow_rat sum = RAT_ZERO, t;
-    int rc;
-    for (size_t i = 0; i < k; i++) {
-        if ((rc = rat_mul(p[i], q[i], &t)) || (rc = rat_mul(t, n[i], &t))
-            || (rc = rat_add(sum, t, &sum)))
-            return rc;
-    }
-    *out = sum;
+    unsigned char be[8];
+    uint64_t m = (uint64_t)u128_abs(v);
+    for (int i = 7; i >= 0; i--, m >>= 8) be[i] = (unsigned char)(m & 0xff);
+    if (!BN_bin2bn(be, 8, r)) return NULL;
+    BN_set_negative(r, v < 0);
+    return r;
+}
+
+/* AVOW_EOVERFLOW when |v| >= 2^63. */
+static int bn_to_i64(const BIGNUM *v, int64_t *out)
+{
+    unsigned char be[8];
+    if (BN_num_bits(v) > 63 || BN_bn2binpad(v, be, 8) != 8) return AVOW_EOVERFLOW;
+    uint64_t m = 0;
+    for (int i = 0; i < 8; i++) m = m << 8 | be[i];
+    *out = BN_is_negative(v) ? -(int64_t)m : (int64_t)m;
     return AVOW_OK;
 }
 
-/* q -= (<q,p> / <p,p>) p */
-static int trend_project_out(avow_rat *q, const avow_rat *p, const avow_rat *n, size_t k)
+/* Divide the integer vector v by the gcd of its entries (g is scratch; the vector is
+ * not all zero). */
+static int bn_vec_reduce(BIGNUM **v, size_t k, BIGNUM *g, BN_CTX *ctx)
 {
-    avow_rat qp, pp, coef, t;
-    int rc;
-    if ((rc = trend_inner(q, p, n, k, &qp)) || (rc = trend_inner(p, p, n, k, &pp)))
-        return rc;
-    if ((rc = rat_div(qp, pp, &coef))) return rc;
+    BN_zero(g);
     for (size_t i = 0; i < k; i++)
-        if ((rc = rat_mul(coef, p[i], &t)) || (rc = rat_sub(q[i], t, &q[i]))) return rc;
+        if (!BN_gcd(g, g, v[i], ctx)) return 0;
+    for (size_t i = 0; i < k; i++)
+        if (!BN_div(v[i], NULL, v[i], g, ctx)) return 0;
+    return 1;
+}
+
+/* out = sum_i w_i p_i q_i; tmp is scratch. */
+static int bn_inner(BIGNUM *out, BIGNUM *const *p, BIGNUM *const *q, BIGNUM *const *w,
+                    size_t k, BIGNUM *tmp, BN_CTX *ctx)
+{
+    BN_zero(out);
+    for (size_t i = 0; i < k; i++)
+        if (!BN_mul(tmp, p[i], q[i], ctx) || !BN_mul(tmp, tmp, w[i], ctx)
+            || !BN_add(out, out, tmp))
+            return 0;
+    return 1;
+}
+
+/* Integer images of the rationals v: v_i * lcm(denominators), into out. */
+static int bn_vec_from_rats(BIGNUM **out, const avow_rat *v, size_t k, BIGNUM *l,
+                            BIGNUM *tmp, BN_CTX *ctx)
+{
+    if (!BN_one(l)) return 0;
+    for (size_t i = 0; i < k; i++) {
+        if (!bn_from_i64(tmp, v[i].den) || !BN_gcd(out[i], l, tmp, ctx)
+            || !BN_div(out[i], NULL, l, out[i], ctx) || !BN_mul(l, out[i], tmp, ctx))
+            return 0;
+    }
+    for (size_t i = 0; i < k; i++) {
+        if (!bn_from_i64(tmp, v[i].den) || !BN_div(out[i], NULL, l, tmp, ctx)
+            || !bn_from_i64(tmp, v[i].num) || !BN_mul(out[i], out[i], tmp, ctx))
+            return 0;
+    }
+    return 1;
+}
+
+/* Fraction-free construction of the contrast into the int64 vector c. Method: Robson,
+ * D. S. (1959), "A simple method for constructing orthogonal polynomials when the
+ * independent variable is unequally spaced", Biometrics 15:187-191: Gram-Schmidt on
+ * 1, x, x^2, ... under <p,q> = sum n_i p(x_i) q(x_i), carried out exactly.
+ * - Weights and levels are replaced by integer multiples W = n * Ln and X = x * Lx
+ *   (Ln, Lx > 0); a positive factor on every weight leaves orthogonality unchanged, and
+ *   an increasing affine map of x leaves the orthogonal family and the signs of the
+ *   leading coefficients unchanged.
+ * - Polynomials are held by their values at the k levels. p_0 = 1 and p_1 = t, where
+ *   t = X * sum(W) - sum(W X), i.e. x centred on its weighted mean.
+ * - Step j orthogonalises t * p_{j-1} (which spans, with p_0..p_{j-1}, the same space
+ *   as 1, x, ..., x^j) against p_{j-1} and p_{j-2} only: for m < j - 2,
+ *   <t p_{j-1}, p_m> = <p_{j-1}, t p_m> = 0 because t p_m has degree below j - 1, so
+ *   the other projections of Gram-Schmidt are exactly zero. With A = <p_{j-1},p_{j-1}>,
+ *   B = <p_{j-2},p_{j-2}>, a = <t p_{j-1}, p_{j-1}>, b = <t p_{j-1}, p_{j-2}>:
+ *   p_j = A B (t p_{j-1}) - a B p_{j-1} - b A p_{j-2}, a multiple of the projection by
+ *   A B > 0, divided by the gcd of its entries (also > 0). The leading coefficient
+ *   therefore stays positive.
+ * - c = W * p_degree, divided by the gcd of its entries. */
+static int trend_bn(const avow_rat *x, const avow_rat *n, size_t k, int degree,
+                    BIGNUM **slots, BN_CTX *ctx, int64_t *c)
+{
+    BIGNUM **w = slots, **t = slots + k, **prev = slots + 2 * k, **cur = slots + 3 * k,
+           **next = slots + 4 * k, **s = slots + 5 * k;
+    BIGNUM *sw = s[0], *swx = s[1], *ca = s[2], *cb = s[3], *ga = s[4], *gb = s[5],
+           *tmp = s[6], *tmp2 = s[7];
+    if (!bn_vec_from_rats(w, n, k, tmp, tmp2, ctx) || !bn_vec_from_rats(t, x, k, tmp, tmp2, ctx))
+        return AVOW_ENOMEM;
+    BN_zero(sw);
+    BN_zero(swx);
+    for (size_t i = 0; i < k; i++)
+        if (!BN_add(sw, sw, w[i]) || !BN_mul(tmp, w[i], t[i], ctx) || !BN_add(swx, swx, tmp))
+            return AVOW_ENOMEM;
+    for (size_t i = 0; i < k; i++)
+        if (!BN_mul(t[i], t[i], sw, ctx) || !BN_sub(t[i], t[i], swx) || !BN_one(prev[i])
+            || !BN_copy(cur[i], t[i]))
+            return AVOW_ENOMEM;
+    if (!bn_vec_reduce(t, k, tmp, ctx) || !bn_vec_reduce(cur, k, tmp, ctx)) return AVOW_ENOMEM;
+    for (int j = 2; j <= degree; j++) {
+        for (size_t i = 0; i < k; i++)
+            if (!BN_mul(next[i], t[i], cur[i], ctx)) return AVOW_ENOMEM;
+        if (!bn_inner(ga, cur, cur, w, k, tmp, ctx) || !bn_inner(gb, prev, prev, w, k, tmp, ctx)
+            || !bn_inner(ca, next, cur, w, k, tmp, ctx)
+            || !bn_inner(cb, next, prev, w, k, tmp, ctx))
+            return AVOW_ENOMEM;
+        /* ca := a B, cb := b A, ga := A B */
+        if (!BN_mul(ca, ca, gb, ctx) || !BN_mul(cb, cb, ga, ctx) || !BN_mul(ga, ga, gb, ctx))
+            return AVOW_ENOMEM;
+        for (size_t i = 0; i < k; i++)
+            if (!BN_mul(next[i], next[i], ga, ctx) || !BN_mul(tmp, ca, cur[i], ctx)
+                || !BN_sub(next[i], next[i], tmp) || !BN_mul(tmp, cb, prev[i], ctx)
+                || !BN_sub(next[i], next[i], tmp))
+                return AVOW_ENOMEM;
+        if (!bn_vec_reduce(next, k, tmp, ctx)) return AVOW_ENOMEM;
+        BIGNUM **old = prev;
+        prev = cur;
+        cur = next;
+        next = old;
+    }
+    for (size_t i = 0; i < k; i++)
+        if (!BN_mul(next[i], w[i], cur[i], ctx)) return AVOW_ENOMEM;
+    if (!bn_vec_reduce(next, k, tmp, ctx)) return AVOW_ENOMEM;
+    for (size_t i = 0; i < k; i++)
+        if (bn_to_i64(next[i], &c[i])) return AVOW_EOVERFLOW;
     return AVOW_OK;
 }
 
-/* Method: Robson, D. S. (1959), "A simple method for constructing orthogonal polynomials
- * when the independent variable is unequally spaced", Biometrics 15:187-191 — Gram-Schmidt
- * on 1, x, x^2, ... under <p,q> = sum n_i p(x_i) q(x_i), here in exact rationals.
- * Polynomials are held by their values at the k points. x is first centred on its
- * weighted mean (so p_1 = t = x - mean) and t is scaled to coprime integers; both are
- * affine maps with positive slope, which leave the orthogonal family and the sign of
- * its leading coefficients unchanged. The j-th step orthogonalises t * p_{j-1} (monic
- * in the same flag of spaces as x^j) against p_{j-1} and p_{j-2} only: its inner product
- * with p_m for m < j - 2 is <p_{j-1}, t p_m> = 0 exactly, so the omitted projections of
- * full Gram-Schmidt are identically zero. Each p_j is rescaled by a positive factor to
- * coprime integers to keep the numbers small. */
+enum { TREND_VECTORS = 5, TREND_SCALARS = 8 };
+
 int rat_trend(const avow_rat *x, const avow_rat *n, size_t k, int degree, avow_rat *c)
 {
     if (k < 2 || degree < 1 || (size_t)degree >= k) return AVOW_EDOM;
@@ -375,40 +476,22 @@ int rat_trend(const avow_rat *x, const avow_rat *n, size_t k, int degree, avow_r
         for (size_t j = 0; j < i; j++)
             if (rat_cmp(x[i], x[j]) == 0) return AVOW_EDOM;
     }
-    avow_rat *buf = avow_malloc(4 * k * sizeof *buf);
-    if (!buf) return AVOW_ENOMEM;
-    avow_rat *t = buf, *prev = buf + k, *cur = buf + 2 * k, *next = buf + 3 * k;
-    avow_rat sx = RAT_ZERO, sn = RAT_ZERO, mean, v;
-    int rc;
-    for (size_t i = 0; i < k; i++)
-        if ((rc = rat_mul(n[i], x[i], &v)) || (rc = rat_add(sx, v, &sx))
-            || (rc = rat_add(sn, n[i], &sn)))
-            goto done;
-    if ((rc = rat_div(sx, sn, &mean))) goto done;
-    for (size_t i = 0; i < k; i++)
-        if ((rc = rat_sub(x[i], mean, &t[i]))) goto done;
-    if ((rc = rat_vec_integer_scale(t, k))) goto done;
-    for (size_t i = 0; i < k; i++) {
-        prev[i] = RAT_ONE;
-        cur[i] = t[i];
+    size_t nslots = TREND_VECTORS * k + TREND_SCALARS;
+    BIGNUM **slots = avow_malloc(nslots * sizeof *slots);
+    int64_t *res = avow_malloc(k * sizeof *res);
+    BN_CTX *ctx = BN_CTX_new();
+    int rc = AVOW_ENOMEM;
+    if (slots && res && ctx) {
+        BN_CTX_start(ctx);
+        size_t got = 0;
+        while (got < nslots && (slots[got] = BN_CTX_get(ctx)) != NULL) got++;
+        if (got == nslots) rc = trend_bn(x, n, k, degree, slots, ctx, res);
+        BN_CTX_end(ctx);
     }
-    for (int j = 2; j <= degree; j++) {
-        for (size_t i = 0; i < k; i++)
-            if ((rc = rat_mul(t[i], cur[i], &next[i]))) goto done;
-        if ((rc = trend_project_out(next, cur, n, k))
-            || (rc = trend_project_out(next, prev, n, k))
-            || (rc = rat_vec_integer_scale(next, k)))
-            goto done;
-        avow_rat *old = prev;
-        prev = cur;
-        cur = next;
-        next = old;
-    }
-    for (size_t i = 0; i < k; i++)
-        if ((rc = rat_mul(n[i], cur[i], &next[i]))) goto done;
-    if ((rc = rat_vec_integer_scale(next, k))) goto done;
-    for (size_t i = 0; i < k; i++) c[i] = next[i];
-done:
-    avow_free(buf);
+    if (rc == AVOW_OK)
+        for (size_t i = 0; i < k; i++) c[i] = (avow_rat){res[i], 1};
+    BN_CTX_free(ctx);
+    avow_free(res);
+    avow_free(slots);
     return rc;
 }
