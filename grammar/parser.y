@@ -118,6 +118,9 @@ stmt(S) ::= FACTOR(K) IDENT(N) opt_string(L) LBRACE(B) levels(V) RBRACE(R).
 levels(A) ::= .                              { A.head = A.tail = NULL; }
 levels(A) ::= levels(B) level(L).            { A = B; if (!A.head) A.head = L; else A.tail->next = L;
                                               A.tail = L; }
+/* A comma may end a level: it separates a level from a following level named by a
+ * string, which would otherwise read as the first level's description. */
+levels(A) ::= levels(B) COMMA.               { A = B; }
 
 level(A) ::= lhead(H). [DESC_LOW]            { A = H; }
 level(A) ::= lhead(H) string(D).             { A = H; A->desc = D; A->span = span_join(A->span, D->span); }

@@ -225,12 +225,24 @@ static void close_block(fmt_state *fs, const ast_stmt *s)
 static void put_level(fmt_state *fs, const ast_level *l)
 {
     strbuf *o = fs->out;
+    /* Without a description, a following level named by a string would read as one:
+     * a comma right after the level's last part keeps them apart. */
+    int comma = !l->desc && l->next && l->next->name.quoted;
     begin_line(fs, l->span.start, l->span.end, 1, 'L');
     put_name(&l->name, o);
+    if (comma && !l->at.text && !l->code) sb_putc(o, ',');
     sb_putc(o, ALIGN2);
-    if (l->at.text) { sb_puts(o, "at "); put_num(&l->at, o); }
+    if (l->at.text) {
+        sb_puts(o, "at ");
+        put_num(&l->at, o);
+        if (comma && !l->code) sb_putc(o, ',');
+    }
     sb_putc(o, ALIGN2);
-    if (l->code) { sb_puts(o, "code "); fmt_string(l->code->s, l->code->len, o); }
+    if (l->code) {
+        sb_puts(o, "code ");
+        fmt_string(l->code->s, l->code->len, o);
+        if (comma) sb_putc(o, ',');
+    }
     sb_putc(o, ALIGN2);
     if (l->desc) fmt_string(l->desc->s, l->desc->len, o);
     end_line(fs, l->span.end);

@@ -1,7 +1,8 @@
 /* rational.c: exact rationals over int64 with 128-bit intermediates, exact decimal
  * conversion, correctly rounded conversion to binary64, and exact orthogonal-polynomial
  * contrasts. No operation ever returns a rounded or wrapped result: anything that does
- * not fit is reported as AVOW_EOVERFLOW. */
+ * not fit is reported as AVOW_EOVERFLOW. Whenever a function returns an error, its
+ * outputs (*out, the vector, c) are left unchanged. */
 #include "avow/rational.h"
 
 #include <assert.h>
@@ -9,15 +10,12 @@
 #include <math.h>
 #include <stdio.h>
 
-#include <openssl/bn.h>
+#include <gmp.h>
 
 #include "avow/util.h"
 
 __extension__ typedef __int128 i128;
 __extension__ typedef unsigned __int128 u128;
-
-/* Products of two int64 magnitudes stay below 2^126, sums of two such below 2^127:
- * every intermediate below fits i128 without wrapping. */
 
 static u128 u128_abs(i128 v) { return v < 0 ? (u128)0 - (u128)v : (u128)v; }
 
@@ -68,6 +66,8 @@ avow_rat rat_int(int64_t v)
     return (avow_rat){v, 1};
 }
 
+/* Products of two int64 magnitudes stay below 2^126 and sums of two such below 2^127,
+ * so the operands handed to rat_norm never wrap. */
 int rat_add(avow_rat a, avow_rat b, avow_rat *out)
 {
     return rat_norm((i128)a.num * b.den + (i128)b.num * a.den, (i128)a.den * b.den, out);
@@ -291,21 +291,6 @@ int rat_vec_integer_scale(avow_rat *v, size_t n)
     return AVOW_OK;
 }
 
-int rat_vec_weighted_dot(const avow_rat *v, const avow_rat *w, const avow_rat *n,
-                         size_t len, avow_rat *out)
-{
-    avow_rat sum = RAT_ZERO, t;
-    int rc;
-    for (size_t i = 0; i < len; i++) {
-        if (rat_sign(n[i]) <= 0) return AVOW_EDOM;
-        if ((rc = rat_mul(v[i], w[i], &t)) || (rc = rat_div(t, n[i], &t))
-            || (rc = rat_add(sum, t, &sum)))
-            return rc;
-    }
-    *out = sum;
-    return AVOW_OK;
-}
-
 /* a * b as a reduced fraction of i128 (cross-cancelling first keeps it exact). */
 static void rat_mul_wide(avow_rat a, avow_rat b, i128 *num, i128 *den)
 {
@@ -313,7 +298,6 @@ static void rat_mul_wide(avow_rat a, avow_rat b, i128 *num, i128 *den)
     int64_t g2 = (int64_t)u64_gcd((uint64_t)u128_abs(b.num), (uint64_t)a.den);
     *num = (i128)(a.num / g1) * (b.num / g2);
     *den = (i128)(a.den / g2) * (b.den / g1);
-    if (*num == 0) *den = 1;
 }
 
 int rat_vec_proportional(const avow_rat *v, const avow_rat *w, size_t n)
@@ -330,73 +314,96 @@ int rat_vec_proportional(const avow_rat *v, const avow_rat *w, size_t n)
     return 1;
 }
 
-/* ---- orthogonal-polynomial contrasts ----
- * The lower-degree polynomials and their inner products can be far larger than the
- * final coprime coefficients, so the construction runs on arbitrary-precision integers
- * (OpenSSL's BIGNUM, already a dependency of libavow) and only the result has to fit
- * int64. Every BN_ call below fails only when memory runs out. */
+/* ---- sums whose intermediates may exceed 128 bits ----
+ * Partial sums of a dot product, and the lower-degree polynomials and inner products
+ * behind a trend contrast, can be far larger than the final values. These run on GMP
+ * integers and fractions, so only the result has to fit int64. GMP allocates with its
+ * own allocator and aborts when memory is exhausted (as in decimal.c). */
 
-static BIGNUM *bn_from_i64(BIGNUM *r, int64_t v)
+static void big_set_i64(mpz_t z, int64_t v)
 {
-    unsigned char be[8];
     uint64_t m = (uint64_t)u128_abs(v);
-    for (int i = 7; i >= 0; i--, m >>= 8) be[i] = (unsigned char)(m & 0xff);
-    if (!BN_bin2bn(be, 8, r)) return NULL;
-    BN_set_negative(r, v < 0);
-    return r;
+    mpz_import(z, 1, 1, sizeof m, 0, 0, &m);
+    if (v < 0) mpz_neg(z, z);
 }
 
-/* AVOW_EOVERFLOW when |v| >= 2^63. */
-static int bn_to_i64(const BIGNUM *v, int64_t *out)
+/* AVOW_EOVERFLOW when |z| >= 2^63. */
+static int big_get_i64(const mpz_t z, int64_t *out)
 {
-    unsigned char be[8];
-    if (BN_num_bits(v) > 63 || BN_bn2binpad(v, be, 8) != 8) return AVOW_EOVERFLOW;
+    if (mpz_sizeinbase(z, 2) > 63) return AVOW_EOVERFLOW;
     uint64_t m = 0;
-    for (int i = 0; i < 8; i++) m = m << 8 | be[i];
-    *out = BN_is_negative(v) ? -(int64_t)m : (int64_t)m;
+    mpz_export(&m, NULL, 1, sizeof m, 0, 0, z);
+    *out = mpz_sgn(z) < 0 ? -(int64_t)m : (int64_t)m;
     return AVOW_OK;
 }
 
-/* Divide the integer vector v by the gcd of its entries (g is scratch; the vector is
- * not all zero). */
-static int bn_vec_reduce(BIGNUM **v, size_t k, BIGNUM *g, BN_CTX *ctx)
+int rat_vec_weighted_dot(const avow_rat *v, const avow_rat *w, const avow_rat *n,
+                         size_t len, avow_rat *out)
 {
-    BN_zero(g);
-    for (size_t i = 0; i < k; i++)
-        if (!BN_gcd(g, g, v[i], ctx)) return 0;
-    for (size_t i = 0; i < k; i++)
-        if (!BN_div(v[i], NULL, v[i], g, ctx)) return 0;
-    return 1;
+    for (size_t i = 0; i < len; i++)
+        if (rat_sign(n[i]) <= 0) return AVOW_EDOM;
+    mpq_t sum, term;
+    mpz_t f;
+    mpq_inits(sum, term, NULL);
+    mpz_init(f);
+    for (size_t i = 0; i < len; i++) {
+        /* v w / n = (v.num w.num n.den) / (v.den w.den n.num), n.num > 0 */
+        big_set_i64(mpq_numref(term), v[i].num);
+        big_set_i64(f, w[i].num);
+        mpz_mul(mpq_numref(term), mpq_numref(term), f);
+        big_set_i64(f, n[i].den);
+        mpz_mul(mpq_numref(term), mpq_numref(term), f);
+        big_set_i64(mpq_denref(term), v[i].den);
+        big_set_i64(f, w[i].den);
+        mpz_mul(mpq_denref(term), mpq_denref(term), f);
+        big_set_i64(f, n[i].num);
+        mpz_mul(mpq_denref(term), mpq_denref(term), f);
+        mpq_canonicalize(term);
+        mpq_add(sum, sum, term);
+    }
+    int64_t num, den;
+    int rc = AVOW_EOVERFLOW;
+    if (!big_get_i64(mpq_numref(sum), &num) && !big_get_i64(mpq_denref(sum), &den)) {
+        *out = (avow_rat){num, den};
+        rc = AVOW_OK;
+    }
+    mpq_clears(sum, term, NULL);
+    mpz_clear(f);
+    return rc;
 }
 
-/* out = sum_i w_i p_i q_i; tmp is scratch. */
-static int bn_inner(BIGNUM *out, BIGNUM *const *p, BIGNUM *const *q, BIGNUM *const *w,
-                    size_t k, BIGNUM *tmp, BN_CTX *ctx)
+/* Divide the integer vector v by the gcd of its entries (the vector is not all zero). */
+static void big_vec_reduce(mpz_t *v, size_t k, mpz_t g)
 {
-    BN_zero(out);
-    for (size_t i = 0; i < k; i++)
-        if (!BN_mul(tmp, p[i], q[i], ctx) || !BN_mul(tmp, tmp, w[i], ctx)
-            || !BN_add(out, out, tmp))
-            return 0;
-    return 1;
+    mpz_set_ui(g, 0);
+    for (size_t i = 0; i < k; i++) mpz_gcd(g, g, v[i]);
+    for (size_t i = 0; i < k; i++) mpz_divexact(v[i], v[i], g);
+}
+
+/* out = sum_i w_i p_i q_i */
+static void big_inner(mpz_t out, mpz_t *p, mpz_t *q, mpz_t *w, size_t k, mpz_t tmp)
+{
+    mpz_set_ui(out, 0);
+    for (size_t i = 0; i < k; i++) {
+        mpz_mul(tmp, p[i], q[i]);
+        mpz_addmul(out, tmp, w[i]);
+    }
 }
 
 /* Integer images of the rationals v: v_i * lcm(denominators), into out. */
-static int bn_vec_from_rats(BIGNUM **out, const avow_rat *v, size_t k, BIGNUM *l,
-                            BIGNUM *tmp, BN_CTX *ctx)
+static void big_vec_from_rats(mpz_t *out, const avow_rat *v, size_t k, mpz_t l, mpz_t tmp)
 {
-    if (!BN_one(l)) return 0;
+    mpz_set_ui(l, 1);
     for (size_t i = 0; i < k; i++) {
-        if (!bn_from_i64(tmp, v[i].den) || !BN_gcd(out[i], l, tmp, ctx)
-            || !BN_div(out[i], NULL, l, out[i], ctx) || !BN_mul(l, out[i], tmp, ctx))
-            return 0;
+        big_set_i64(tmp, v[i].den);
+        mpz_lcm(l, l, tmp);
     }
     for (size_t i = 0; i < k; i++) {
-        if (!bn_from_i64(tmp, v[i].den) || !BN_div(out[i], NULL, l, tmp, ctx)
-            || !bn_from_i64(tmp, v[i].num) || !BN_mul(out[i], out[i], tmp, ctx))
-            return 0;
+        big_set_i64(tmp, v[i].den);
+        mpz_divexact(out[i], l, tmp);
+        big_set_i64(tmp, v[i].num);
+        mpz_mul(out[i], out[i], tmp);
     }
-    return 1;
 }
 
 /* Fraction-free construction of the contrast into the int64 vector c. Method: Robson,
@@ -418,51 +425,55 @@ static int bn_vec_from_rats(BIGNUM **out, const avow_rat *v, size_t k, BIGNUM *l
  *   A B > 0, divided by the gcd of its entries (also > 0). The leading coefficient
  *   therefore stays positive.
  * - c = W * p_degree, divided by the gcd of its entries. */
-static int trend_bn(const avow_rat *x, const avow_rat *n, size_t k, int degree,
-                    BIGNUM **slots, BN_CTX *ctx, int64_t *c)
+static int trend_big(const avow_rat *x, const avow_rat *n, size_t k, int degree,
+                     mpz_t *slots, int64_t *c)
 {
-    BIGNUM **w = slots, **t = slots + k, **prev = slots + 2 * k, **cur = slots + 3 * k,
-           **next = slots + 4 * k, **s = slots + 5 * k;
-    BIGNUM *sw = s[0], *swx = s[1], *ca = s[2], *cb = s[3], *ga = s[4], *gb = s[5],
-           *tmp = s[6], *tmp2 = s[7];
-    if (!bn_vec_from_rats(w, n, k, tmp, tmp2, ctx) || !bn_vec_from_rats(t, x, k, tmp, tmp2, ctx))
-        return AVOW_ENOMEM;
-    BN_zero(sw);
-    BN_zero(swx);
-    for (size_t i = 0; i < k; i++)
-        if (!BN_add(sw, sw, w[i]) || !BN_mul(tmp, w[i], t[i], ctx) || !BN_add(swx, swx, tmp))
-            return AVOW_ENOMEM;
-    for (size_t i = 0; i < k; i++)
-        if (!BN_mul(t[i], t[i], sw, ctx) || !BN_sub(t[i], t[i], swx) || !BN_one(prev[i])
-            || !BN_copy(cur[i], t[i]))
-            return AVOW_ENOMEM;
-    if (!bn_vec_reduce(t, k, tmp, ctx) || !bn_vec_reduce(cur, k, tmp, ctx)) return AVOW_ENOMEM;
+    mpz_t *w = slots, *t = slots + k, *prev = slots + 2 * k, *cur = slots + 3 * k,
+          *next = slots + 4 * k, *s = slots + 5 * k;
+    mpz_ptr sw = s[0], swx = s[1], ca = s[2], cb = s[3], ga = s[4], gb = s[5], tmp = s[6],
+            tmp2 = s[7];
+    big_vec_from_rats(w, n, k, tmp, tmp2);
+    big_vec_from_rats(t, x, k, tmp, tmp2);
+    mpz_set_ui(sw, 0);
+    mpz_set_ui(swx, 0);
+    for (size_t i = 0; i < k; i++) {
+        mpz_add(sw, sw, w[i]);
+        mpz_addmul(swx, w[i], t[i]);
+    }
+    for (size_t i = 0; i < k; i++) {
+        mpz_mul(t[i], t[i], sw);
+        mpz_sub(t[i], t[i], swx);
+    }
+    big_vec_reduce(t, k, tmp);
+    for (size_t i = 0; i < k; i++) {
+        mpz_set_ui(prev[i], 1);
+        mpz_set(cur[i], t[i]);
+    }
     for (int j = 2; j <= degree; j++) {
-        for (size_t i = 0; i < k; i++)
-            if (!BN_mul(next[i], t[i], cur[i], ctx)) return AVOW_ENOMEM;
-        if (!bn_inner(ga, cur, cur, w, k, tmp, ctx) || !bn_inner(gb, prev, prev, w, k, tmp, ctx)
-            || !bn_inner(ca, next, cur, w, k, tmp, ctx)
-            || !bn_inner(cb, next, prev, w, k, tmp, ctx))
-            return AVOW_ENOMEM;
+        for (size_t i = 0; i < k; i++) mpz_mul(next[i], t[i], cur[i]);
+        big_inner(ga, cur, cur, w, k, tmp);
+        big_inner(gb, prev, prev, w, k, tmp);
+        big_inner(ca, next, cur, w, k, tmp);
+        big_inner(cb, next, prev, w, k, tmp);
         /* ca := a B, cb := b A, ga := A B */
-        if (!BN_mul(ca, ca, gb, ctx) || !BN_mul(cb, cb, ga, ctx) || !BN_mul(ga, ga, gb, ctx))
-            return AVOW_ENOMEM;
-        for (size_t i = 0; i < k; i++)
-            if (!BN_mul(next[i], next[i], ga, ctx) || !BN_mul(tmp, ca, cur[i], ctx)
-                || !BN_sub(next[i], next[i], tmp) || !BN_mul(tmp, cb, prev[i], ctx)
-                || !BN_sub(next[i], next[i], tmp))
-                return AVOW_ENOMEM;
-        if (!bn_vec_reduce(next, k, tmp, ctx)) return AVOW_ENOMEM;
-        BIGNUM **old = prev;
+        mpz_mul(ca, ca, gb);
+        mpz_mul(cb, cb, ga);
+        mpz_mul(ga, ga, gb);
+        for (size_t i = 0; i < k; i++) {
+            mpz_mul(next[i], next[i], ga);
+            mpz_submul(next[i], ca, cur[i]);
+            mpz_submul(next[i], cb, prev[i]);
+        }
+        big_vec_reduce(next, k, tmp);
+        mpz_t *old = prev;
         prev = cur;
         cur = next;
         next = old;
     }
+    for (size_t i = 0; i < k; i++) mpz_mul(next[i], w[i], cur[i]);
+    big_vec_reduce(next, k, tmp);
     for (size_t i = 0; i < k; i++)
-        if (!BN_mul(next[i], w[i], cur[i], ctx)) return AVOW_ENOMEM;
-    if (!bn_vec_reduce(next, k, tmp, ctx)) return AVOW_ENOMEM;
-    for (size_t i = 0; i < k; i++)
-        if (bn_to_i64(next[i], &c[i])) return AVOW_EOVERFLOW;
+        if (big_get_i64(next[i], &c[i])) return AVOW_EOVERFLOW;
     return AVOW_OK;
 }
 
@@ -477,20 +488,16 @@ int rat_trend(const avow_rat *x, const avow_rat *n, size_t k, int degree, avow_r
             if (rat_cmp(x[i], x[j]) == 0) return AVOW_EDOM;
     }
     size_t nslots = TREND_VECTORS * k + TREND_SCALARS;
-    BIGNUM **slots = avow_malloc(nslots * sizeof *slots);
+    mpz_t *slots = avow_malloc(nslots * sizeof *slots);
     int64_t *res = avow_malloc(k * sizeof *res);
-    BN_CTX *ctx = BN_CTX_new();
     int rc = AVOW_ENOMEM;
-    if (slots && res && ctx) {
-        BN_CTX_start(ctx);
-        size_t got = 0;
-        while (got < nslots && (slots[got] = BN_CTX_get(ctx)) != NULL) got++;
-        if (got == nslots) rc = trend_bn(x, n, k, degree, slots, ctx, res);
-        BN_CTX_end(ctx);
+    if (slots && res) {
+        for (size_t i = 0; i < nslots; i++) mpz_init(slots[i]);
+        rc = trend_big(x, n, k, degree, slots, res);
+        for (size_t i = 0; i < nslots; i++) mpz_clear(slots[i]);
     }
     if (rc == AVOW_OK)
         for (size_t i = 0; i < k; i++) c[i] = (avow_rat){res[i], 1};
-    BN_CTX_free(ctx);
     avow_free(res);
     avow_free(slots);
     return rc;

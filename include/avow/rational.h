@@ -51,7 +51,8 @@ int rat_vec_proportional(const avow_rat *v, const avow_rat *w, size_t n);
  * n[i] > 0: coefficients c[i] = n[i] * p(x[i]), where p has degree `degree`, positive
  * leading coefficient, and is orthogonal to every polynomial of lower degree under the
  * weights n. The result is scaled to coprime integers. The x must be distinct and
- * 1 <= degree < k. Returns AVOW_OK, AVOW_EDOM (bad arguments) or AVOW_EOVERFLOW. */
+ * 1 <= degree < k. Returns AVOW_OK, AVOW_EDOM (bad arguments), AVOW_EOVERFLOW (the
+ * result does not fit 64-bit fractions) or AVOW_ENOMEM. Intermediates use GMP. */
 int rat_trend(const avow_rat *x, const avow_rat *n, size_t k, int degree, avow_rat *c);
 
 #endif

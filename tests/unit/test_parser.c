@@ -147,7 +147,7 @@ static void test_syntax_errors(void **state)
 {
     (void)state;
     expect_syntax("factor f { a 5 }", 1, 14,
-                  "expected a level name or '}' after `a`; found the number `5`");
+                  "expected a level name, '}' or ',' after `a`; found the number `5`");
     expect_syntax("contrast x a - b", 1, 12, "expected '=' after `x`; found the name `a`");
     expect_syntax("contrast x = a -", 1, 17, "expected an expression after `-`; found the end of the file");
     expect_syntax("study", 1, 6, "expected a string after `study`; found the end of the file");

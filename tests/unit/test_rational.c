@@ -315,6 +315,8 @@ static const char *const dec_overflow[] = {
     "1e30", "1e-30", "1e19", "1e-19", "9223372036854775808", "99999999999999999999",
     "1e999999999999", "1e-999999999999", "1e99999999999999999999999999999999999999",
     "1e-99999999999999999999999999999999999999", "9223372036854775807.5",
+    /* exponents 2^64 + 5 and 2^64, which wrap to 5 and 0 in 64 bits */
+    "1e18446744073709551621", "1e-18446744073709551621", "2e18446744073709551616",
     "0.9223372036854775807",            /* INT64_MAX / 10^19 */
     "18446744073709551616e-1",          /* 2^64 / 10 = 2^63 / 5 */
     "922337203685477580.8e1",           /* 2^63 */
@@ -464,6 +466,12 @@ static void test_integer_scale_overflow(void **state)
     avow_rat c[] = {mk(1, MAXI), mk(1, MAXI - 1), mk(1, MAXI - 2), mk(1, MAXI - 3)};
     assert_int_equal(rat_vec_integer_scale(c, 4), AVOW_EOVERFLOW);
     expect_rat(c[0], 1, MAXI);
+    /* pairwise coprime denominators with product 2^128 + 4 (Python 3.11 integers),
+     * which would wrap to 4 in 128 bits; the scaled entries exceed 10^21 */
+    avow_rat d[] = {mk(1, INT64_C(70949286317145860)), mk(1, INT64_C(40388473189)),
+                    mk(1, INT64_C(118750098349))};
+    assert_int_equal(rat_vec_integer_scale(d, 3), AVOW_EOVERFLOW);
+    expect_rat(d[2], 1, INT64_C(118750098349));
 }
 
 static void test_weighted_dot(void **state)
@@ -480,6 +488,10 @@ static void test_weighted_dot(void **state)
     const avow_rat n2[] = {mk(1, 3), rat_int(2)};
     assert_int_equal(rat_vec_weighted_dot(v2, w2, n2, 2, &r), AVOW_OK);
     expect_rat(r, 34, 105);  /* 3/10 + 1/42, by hand */
+    const avow_rat n3[] = {RAT_ONE, rat_int(4)};
+    const avow_rat w3[] = {rat_int(-3), RAT_ONE};
+    assert_int_equal(rat_vec_weighted_dot(v, w3, n3, 2, &r), AVOW_OK);
+    expect_rat(r, -5, 2);    /* -3 + 2/4, by hand */
     assert_int_equal(rat_vec_weighted_dot(v, w, n, 0, &r), AVOW_OK);
     expect_rat(r, 0, 1);
 
@@ -492,6 +504,24 @@ static void test_weighted_dot(void **state)
     const avow_rat ones[] = {RAT_ONE, RAT_ONE};
     assert_int_equal(rat_vec_weighted_dot(big, ones, ones, 2, &r), AVOW_EOVERFLOW);
     assert_int_equal(rat_vec_weighted_dot(big, big, ones, 1, &r), AVOW_EOVERFLOW);
+    /* partial sums and single terms beyond 64 bits, final values that fit */
+    const avow_rat up[] = {rat_int(MAXI), rat_int(MAXI), rat_int(-MAXI)};
+    const avow_rat ones3[] = {RAT_ONE, RAT_ONE, RAT_ONE};
+    assert_int_equal(rat_vec_weighted_dot(up, ones3, ones3, 3, &r), AVOW_OK);
+    expect_rat(r, MAXI, 1);
+    const avow_rat hv[] = {rat_int(P62), rat_int(-P62)};
+    const avow_rat hw[] = {rat_int(4), rat_int(4)};
+    const avow_rat hn[] = {mk(1, 3), mk(1, 3)};
+    assert_int_equal(rat_vec_weighted_dot(hv, hw, hn, 2, &r), AVOW_OK);
+    expect_rat(r, 0, 1);
+    /* (1/M)(1/M)/(1/M) + (1/(M-1))(1/(M-1))/(1/(M-1)) - 1/M = 1/(M-1) */
+    const avow_rat dv[] = {mk(1, MAXI), mk(1, MAXI - 1), mk(-1, MAXI)};
+    const avow_rat dn[] = {mk(1, MAXI), mk(1, MAXI - 1), RAT_ONE};
+    const avow_rat dw[] = {mk(1, MAXI), mk(1, MAXI - 1), RAT_ONE};
+    assert_int_equal(rat_vec_weighted_dot(dv, dw, dn, 3, &r), AVOW_OK);
+    expect_rat(r, 1, MAXI - 1);
+
+    r = sentinel;
     const avow_rat tiny[] = {mk(1, INT64_C(1) << 32)};
     const avow_rat tinyw[] = {mk(1, INT64_C(1) << 31)};
     assert_int_equal(rat_vec_weighted_dot(tiny, tinyw, ones, 1, &r), AVOW_EOVERFLOW);
