@@ -505,7 +505,10 @@ static int reduce_trend(checker *ck, const ast_expr *e, linval *out)
     }
     if (ok) {
         int rc = rat_trend(x, w, k, (int)deg.num, c);
-        if (rc) {
+        if (rc == AVOW_ENOMEM) {
+            ck->ctx->oom = 1;
+            ok = 0;
+        } else if (rc) {
             avow_diag *d = ctx_error(ck->ctx, e->span, "the trend coefficients overflow exact 64-bit fractions");
             diag_hint(ck->ctx, d, "rescale the `at` values (for example hours instead of seconds)");
             ok = 0;

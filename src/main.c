@@ -5,6 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "avow/evaluate.h"
 #include "avow/plan.h"
 #include "avow/render.h"
 #include "avow/syntax.h"
@@ -16,6 +17,8 @@ static const char usage_text[] =
     "\n"
     "commands:\n"
     "  check STUDY [--format text|json]   review the plan of a study file; reads no data\n"
+    "  run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
+    "                                     analyse the data and write the report\n"
     "  fmt STUDY [-w]                     print the canonical form; -w rewrites the file\n"
     "  help [COMMAND]                     describe a command\n"
     "\n"
@@ -54,6 +57,24 @@ static const char help_fmt[] =
     "       already canonical\n"
     "\n"
     "exit status: 0 done, 1 the file has syntax errors, 64 command-line misuse.\n";
+
+static const char help_run[] =
+    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
+    "\n"
+    "Checks the study, reads its data file in one pass, and writes the analysis report:\n"
+    "the inputs with their SHA-256 digests and row counts, the study file echoed with line\n"
+    "numbers, level summaries, the ANOVA table, the planned contrasts with raw and adjusted\n"
+    "p-values, intervals and findings, exploratory contrasts, and notes.\n"
+    "\n"
+    "  --format text   the report for people (default)\n"
+    "  --format json   the report as avow.report/1 JSON\n"
+    "  --data FILE     analyse FILE instead of the study's data file (the study's sha256\n"
+    "                  lock applies to its own file only; the report names the file used)\n"
+    "  -o FILE         write the report to FILE atomically instead of standard output\n"
+    "\n"
+    "exit status: 0 done, 1 the study file has errors, 2 the data do not fit the study\n"
+    "(missing or changed file, unknown level label, non-numeric value, a level without\n"
+    "data, too few observations), 64 command-line misuse. On any error no report is written.\n";
 
 static int usage_error(const char *fmt, const char *arg)
 {
@@ -142,6 +163,131 @@ static int cmd_check(int argc, char **argv)
     return rc;
 }
 
+/* The data file's path: --data as given, or the study's, relative to the study's folder. */
+static char *data_location(const char *study_path, const char *rel)
+{
+    if (rel[0] == '/') return strdup(rel);
+    const char *slash = strrchr(study_path, '/');
+    size_t dir = slash ? (size_t)(slash - study_path) + 1 : 0;
+    char *p = malloc(dir + strlen(rel) + 1);
+    if (!p) return NULL;
+    memcpy(p, study_path, dir);
+    strcpy(p + dir, rel);
+    return p;
+}
+
+static int cmd_run(int argc, char **argv)
+{
+    const char *path = NULL, *data_opt = NULL, *out_path = NULL;
+    int json = 0;
+    for (int i = 0; i < argc; i++) {
+        const char *a = argv[i];
+        if (strcmp(a, "--format") == 0 || strncmp(a, "--format=", 9) == 0) {
+            const char *v = a[8] == '=' ? a + 9 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!v) return usage_error("--format needs a value: text or json%s", "");
+            if (strcmp(v, "json") == 0) json = 1;
+            else if (strcmp(v, "text") == 0) json = 0;
+            else return usage_error("unknown format `%s`; the formats are text and json", v);
+        } else if (strcmp(a, "--data") == 0 || strncmp(a, "--data=", 7) == 0) {
+            data_opt = a[6] == '=' ? a + 7 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!data_opt || !data_opt[0]) return usage_error("--data needs a file name%s", "");
+        } else if (strcmp(a, "-o") == 0) {
+            out_path = i + 1 < argc ? argv[++i] : NULL;
+            if (!out_path || !out_path[0]) return usage_error("-o needs a file name%s", "");
+        } else if (strcmp(a, "--help") == 0) {
+            fputs(help_run, stdout);
+            return 0;
+        } else if (a[0] == '-' && a[1]) {
+            return usage_error("run: unknown option `%s`", a);
+        } else if (path) {
+            return usage_error("run: one study file at a time (also given: `%s`)", a);
+        } else {
+            path = a;
+        }
+    }
+    if (!path) return usage_error("run: which study file?%s", "");
+    avow_ctx ctx;
+    if (load(&ctx, path)) return EXIT_STUDY;
+    ast_study study;
+    avow_plan plan;
+    memset(&plan, 0, sizeof plan);
+    int ok = parse_study(&ctx, &study) == 0;
+    if (ok) ok = check_study(&ctx, &study, &plan) == 0;
+    if (ctx.oom) { fprintf(stderr, "avow: out of memory\n"); ctx_free(&ctx); return EXIT_STUDY; }
+    print_diags(&ctx);
+    if (!ok) {
+        fprintf(stderr, "%s: %zu error%s, %zu warning%s; nothing was analysed\n", path, ctx.nerrors,
+                ctx.nerrors == 1 ? "" : "s", ctx.nwarnings, ctx.nwarnings == 1 ? "" : "s");
+        ctx_free(&ctx);
+        return EXIT_STUDY;
+    }
+    if (!data_opt && !plan.has_data) {
+        fprintf(stderr, "avow: %s names no data file: add a `data` statement or give --data FILE\n", path);
+        ctx_free(&ctx);
+        return EXIT_DATA;
+    }
+    avow_results res;
+    memset(&res, 0, sizeof res);
+    char *data_path = data_opt ? strdup(data_opt) : data_location(path, plan.data_path);
+    res.data_path = data_path;
+    res.data_shown = data_opt ? data_opt : plan.data_path;
+    res.data_from_option = data_opt != NULL;
+    eval_sha256_bytes(ctx.src, ctx.len, res.study_sha256);
+    int rc = 0;
+    strbuf errs = {0}, out = {0};
+    avow_acc *cells = NULL;
+    if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
+    if (eval_sha256_file(data_path, res.data_sha256) != AVOW_OK) {
+        fprintf(stderr, "%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
+        rc = EXIT_DATA;
+        goto done;
+    }
+    if (plan.sha256 && !data_opt && strcmp(plan.sha256, res.data_sha256) != 0) {
+        fprintf(stderr, "%s: error: the data file has changed since the study locked it\n"
+                        "  sha256 locked in the study: %s\n  sha256 of the file now:     %s\n"
+                        "  hint: if the change is intended, update the `sha256` line of the data block\n",
+                data_path, plan.sha256, res.data_sha256);
+        rc = EXIT_DATA;
+        goto done;
+    }
+    cells = calloc(plan.ncells, sizeof *cells);
+    if (!cells) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
+    for (size_t i = 0; i < plan.ncells; i++) dec_acc_init(&cells[i]);
+    if (eval_read(&plan, data_path, data_path, cells, &res, &errs) != 0) {
+        fwrite(errs.s, 1, errs.len, stderr);
+        fprintf(stderr, "avow: the data do not fit the study; no report was written\n");
+        rc = EXIT_DATA;
+        goto done;
+    }
+    int arc = eval_analyse(&plan, cells, &res, &errs);
+    if (arc != AVOW_OK) {
+        if (errs.len) fwrite(errs.s, 1, errs.len, stderr);
+        else fprintf(stderr, "avow: out of memory\n");
+        rc = arc == AVOW_EDOM ? EXIT_DATA : EXIT_STUDY;
+        goto done;
+    }
+    if (json) render_report_json(&ctx, &plan, &res, &out);
+    else render_report_text(&ctx, &plan, &res, &out);
+    if (out.failed) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
+    if (out_path) {
+        if (avow_write_atomic(out_path, out.s, out.len) != AVOW_OK) {
+            fprintf(stderr, "avow: cannot write %s: %s\n", out_path, strerror(errno));
+            rc = EXIT_STUDY;
+        }
+    } else {
+        write_stdout(&out);
+    }
+done:
+    if (cells) for (size_t i = 0; i < plan.ncells; i++) dec_acc_clear(&cells[i]);
+    free(cells);
+    free(data_path);
+    eval_results_free(&res);
+    sb_free(&errs);
+    sb_free(&out);
+    ctx_free(&ctx);
+    return rc;
+}
+
 static int cmd_fmt(int argc, char **argv)
 {
     const char *path = NULL;
@@ -191,12 +337,14 @@ int main(int argc, char **argv)
     if (strcmp(cmd, "--version") == 0) { printf("avow %s\n", AVOW_VERSION); return 0; }
     if (strcmp(cmd, "check") == 0) return cmd_check(argc - 2, argv + 2);
     if (strcmp(cmd, "fmt") == 0) return cmd_fmt(argc - 2, argv + 2);
+    if (strcmp(cmd, "run") == 0) return cmd_run(argc - 2, argv + 2);
     if (strcmp(cmd, "help") == 0) {
         if (argc < 3) { fputs(usage_text, stdout); return 0; }
         if (strcmp(argv[2], "check") == 0) { fputs(help_check, stdout); return 0; }
         if (strcmp(argv[2], "fmt") == 0) { fputs(help_fmt, stdout); return 0; }
+        if (strcmp(argv[2], "run") == 0) { fputs(help_run, stdout); return 0; }
         if (strcmp(argv[2], "help") == 0) { fputs(usage_text, stdout); return 0; }
-        return usage_error("help: no command `%s`; the commands are check, fmt and help", argv[2]);
+        return usage_error("help: no command `%s`; the commands are check, run, fmt and help", argv[2]);
     }
-    return usage_error("unknown command `%s`; the commands are check, fmt and help", cmd);
+    return usage_error("unknown command `%s`; the commands are check, run, fmt and help", cmd);
 }

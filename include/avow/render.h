@@ -5,6 +5,7 @@
 
 #include "avow/ast.h"
 #include "avow/plan.h"
+#include "avow/results.h"
 
 #define AVOW_VERSION "0.1.0"
 
@@ -12,6 +13,11 @@
 void render_plan_text(const avow_ctx *ctx, const avow_plan *plan, strbuf *out);
 /* The plan as `avow.plan/1` JSON; when the study has errors, only the diagnostics. */
 void render_plan_json(const avow_ctx *ctx, const avow_plan *plan, int ok, strbuf *out);
+
+/* The analysis report of `avow run`, for people and as avow.report/1 JSON. ctx is the
+ * study file's context (its bytes are echoed in the text report). */
+void render_report_text(const avow_ctx *ctx, const avow_plan *plan, const avow_results *res, strbuf *out);
+void render_report_json(const avow_ctx *ctx, const avow_plan *plan, const avow_results *res, strbuf *out);
 
 /* The canonical form of a study file, comments kept. */
 void fmt_study(const avow_ctx *ctx, const ast_study *study, strbuf *out);

@@ -1,0 +1,40 @@
+/* evaluate.h: the evaluator of `avow run`: the data reader (one streaming pass into
+ * exact per-level sums), the input digests, and the analysis (ANOVA, contrasts,
+ * multiplicity). Plain functions over the Plan and the Results; nothing prints. */
+#ifndef AVOW_EVALUATE_H
+#define AVOW_EVALUATE_H
+
+#include <stddef.h>
+
+#include "avow/decimal.h"
+#include "avow/plan.h"
+#include "avow/results.h"
+#include "avow/util.h"
+
+/* Most data errors collected before the reader gives up. */
+#define AVOW_MAX_DATA_ERRORS 20
+
+/* SHA-256 of a file's bytes as 64 lowercase hex digits (hex holds 65 bytes).
+ * Returns AVOW_OK or AVOW_EIO (errno kept). */
+int eval_sha256_file(const char *path, char *hex);
+/* SHA-256 of a buffer. */
+void eval_sha256_bytes(const void *bytes, size_t len, char *hex);
+
+/* Read the data file at `path` (shown in messages as `shown`) for the plan: map columns
+ * and level labels, take each response value exactly, and account for every row.
+ * cells: plan->ncells accumulators, initialised by the caller. Errors (each
+ * `FILE:LINE:COL: error: message`, at most AVOW_MAX_DATA_ERRORS) are appended to errs.
+ * Returns the number of errors; 0 when the data fit the study. */
+size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_acc *cells,
+                 avow_results *res, strbuf *errs);
+
+/* Analyse the accumulated data: level summaries, the ANOVA table, planned and
+ * exploratory contrasts with their adjustments. res->levels and the contrast arrays are
+ * allocated with avow_malloc; release them with eval_results_free.
+ * Returns AVOW_OK, AVOW_ENOMEM or AVOW_EDOM (data that cannot be analysed; a message
+ * is appended to errs). */
+int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res, strbuf *errs);
+
+void eval_results_free(avow_results *res);
+
+#endif

@@ -1,0 +1,339 @@
+/* reader.c: the data reader of `avow run`. One streaming pass over a CSV/TSV file:
+ * columns are found by name in the header, level labels are matched to cells, each
+ * response value is parsed from its decimal text and accumulated exactly (decimal.c),
+ * and every row is accounted for. Also the SHA-256 digests of the inputs (OpenSSL). */
+#include "avow/evaluate.h"
+
+#include <errno.h>
+#include <stdarg.h>
+#include <fcntl.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include <openssl/evp.h>
+
+#include "avow/csv.h"
+
+static void to_hex(const unsigned char *md, char *hex)
+{
+    static const char digits[] = "0123456789abcdef";
+    for (int i = 0; i < 32; i++) {
+        hex[2 * i] = digits[md[i] >> 4];
+        hex[2 * i + 1] = digits[md[i] & 15];
+    }
+    hex[64] = 0;
+}
+
+void eval_sha256_bytes(const void *bytes, size_t len, char *hex)
+{
+    unsigned char md[32];
+    unsigned int mdlen = 0;
+    EVP_Digest(bytes, len, md, &mdlen, EVP_sha256(), NULL);
+    to_hex(md, hex);
+}
+
+int eval_sha256_file(const char *path, char *hex)
+{
+    int fd = open(path, O_RDONLY);
+    if (fd < 0) return AVOW_EIO;
+    EVP_MD_CTX *c = EVP_MD_CTX_new();
+    unsigned char *buf = avow_malloc(1 << 20);
+    if (!c || !buf || EVP_DigestInit_ex(c, EVP_sha256(), NULL) != 1) {
+        EVP_MD_CTX_free(c); avow_free(buf); close(fd);
+        return AVOW_ENOMEM;
+    }
+    int rc = AVOW_OK;
+    for (;;) {
+        ssize_t got = read(fd, buf, 1 << 20);
+        if (got < 0) { if (errno == EINTR) continue; rc = AVOW_EIO; break; }
+        if (got == 0) break;
+        EVP_DigestUpdate(c, buf, (size_t)got);
+    }
+    if (rc == AVOW_OK) {
+        unsigned char md[32];
+        unsigned int mdlen = 0;
+        EVP_DigestFinal_ex(c, md, &mdlen);
+        to_hex(md, hex);
+    }
+    int e = errno;
+    EVP_MD_CTX_free(c);
+    avow_free(buf);
+    close(fd);
+    errno = e;
+    return rc;
+}
+
+/* ---- label lookup: open addressing over the level labels ---- */
+
+typedef struct label_map {
+    const char **label;     /* per slot: the label, or NULL */
+    size_t *len;            /* its length */
+    size_t *cell;           /* its cell */
+    size_t mask;            /* slots - 1 (a power of two) */
+} label_map;
+
+static uint64_t hash_bytes(const char *s, size_t n)
+{
+    uint64_t h = 1469598103934665603u;   /* FNV-1a */
+    for (size_t i = 0; i < n; i++) { h ^= (unsigned char)s[i]; h *= 1099511628211u; }
+    return h;
+}
+
+static int map_init(label_map *m, const plan_factor *f)
+{
+    size_t slots = 16;
+    while (slots < 2 * f->nlevels + 2) slots *= 2;
+    m->mask = slots - 1;
+    m->label = avow_calloc(slots, sizeof *m->label);
+    m->len = avow_calloc(slots, sizeof *m->len);
+    m->cell = avow_calloc(slots, sizeof *m->cell);
+    if (!m->label || !m->len || !m->cell) return 0;
+    for (size_t i = 0; i < f->nlevels; i++) {
+        const char *lab = f->levels[i].code ? f->levels[i].code : f->levels[i].name;
+        size_t n = strlen(lab);
+        size_t h = (size_t)hash_bytes(lab, n) & m->mask;
+        while (m->label[h]) h = (h + 1) & m->mask;
+        m->label[h] = lab; m->len[h] = n; m->cell[h] = i;
+    }
+    return 1;
+}
+
+static long map_find(const label_map *m, const char *s, size_t n)
+{
+    size_t h = (size_t)hash_bytes(s, n) & m->mask;
+    while (m->label[h]) {
+        if (m->len[h] == n && memcmp(m->label[h], s, n) == 0) return (long)m->cell[h];
+        h = (h + 1) & m->mask;
+    }
+    return -1;
+}
+
+static void map_free(label_map *m)
+{
+    avow_free(m->label); avow_free(m->len); avow_free(m->cell);
+}
+
+/* ---- the pass ---- */
+
+static int is_missing(const avow_plan *p, const char *s, size_t n)
+{
+    for (size_t i = 0; i < p->nmissing; i++)
+        if (strlen(p->missing[i]) == n && memcmp(p->missing[i], s, n) == 0) return 1;
+    return 0;
+}
+
+/* Append a field's text for a message, shortened and with control bytes replaced. */
+static void put_field(strbuf *b, const char *s, size_t n)
+{
+    sb_putc(b, '"');
+    size_t shown = n > 40 ? 40 : n;
+    for (size_t i = 0; i < shown; i++) {
+        unsigned char c = (unsigned char)s[i];
+        sb_putc(b, (c < 0x20 || c == 0x7f) ? '?' : (char)c);
+    }
+    if (shown < n) sb_puts(b, "...");
+    sb_putc(b, '"');
+}
+
+typedef struct read_state {
+    const avow_plan *plan;
+    const char *shown;      /* file name in messages */
+    strbuf *errs;
+    size_t nerr;            /* errors recorded */
+} read_state;
+
+static void data_error(read_state *rs, uint64_t line, size_t col, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 4, 5)))
+#endif
+    ;
+
+static void data_error(read_state *rs, uint64_t line, size_t col, const char *fmt, ...)
+{
+    rs->nerr++;
+    if (rs->nerr > AVOW_MAX_DATA_ERRORS) return;
+    if (line) sb_printf(rs->errs, "%s:%llu:%zu: error: ", rs->shown, (unsigned long long)line, col);
+    else sb_printf(rs->errs, "%s: error: ", rs->shown);
+    va_list ap;
+    va_start(ap, fmt);
+    sb_vprintf(rs->errs, fmt, ap);
+    va_end(ap);
+    sb_putc(rs->errs, '\n');
+}
+
+static char pick_delimiter(const avow_plan *p, const char *path)
+{
+    if (p->delimiter) return p->delimiter;
+    size_t n = strlen(path);
+    if ((n >= 4 && strcmp(path + n - 4, ".tsv") == 0) || (n >= 4 && strcmp(path + n - 4, ".tab") == 0))
+        return '\t';
+    return ',';
+}
+
+/* Column index of name in the header, or -1 (-2 when it appears twice). */
+static long find_column(const csv_record *hdr, const char *name)
+{
+    long found = -1;
+    size_t n = strlen(name);
+    for (size_t i = 0; i < hdr->nfields; i++)
+        if (hdr->fields[i].len == n && memcmp(hdr->fields[i].ptr, name, n) == 0) {
+            if (found >= 0) return -2;
+            found = (long)i;
+        }
+    return found;
+}
+
+size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_acc *cells,
+                 avow_results *res, strbuf *errs)
+{
+    read_state rs = {plan, shown, errs, 0};
+    const plan_factor *f = &plan->factors[0];
+    res->delimiter = pick_delimiter(plan, path);
+    int fd = open(path, O_RDONLY);
+    if (fd < 0) {
+        sb_printf(errs, "%s: error: cannot open the data file: %s\n", shown, strerror(errno));
+        return 1;
+    }
+    csv_reader *r = NULL;
+    label_map map = {0};
+    if (csv_open_fd(fd, res->delimiter, &r) != AVOW_OK || !map_init(&map, f)) {
+        sb_printf(errs, "%s: error: out of memory\n", shown);
+        csv_close(r); map_free(&map); close(fd);
+        return 1;
+    }
+    csv_record rec;
+    if (csv_read_header(r, &rec) != AVOW_OK) {
+        const csv_error_info *e = csv_error(r);
+        data_error(&rs, e->line ? e->line : 1, e->col ? e->col : 1, "%s%s",
+                   e->status == AVOW_EIO ? "cannot read the data file: " : "the header row: ",
+                   e->status == AVOW_EIO ? strerror(e->sys_errno) : e->msg);
+        goto done;
+    }
+    size_t ncols = rec.nfields;
+    long fcol = find_column(&rec, plan->columns[0]);
+    long ycol = find_column(&rec, plan->columns[plan->nfactors]);
+    const char *names[2] = {plan->columns[0], plan->columns[plan->nfactors]};
+    long cols[2] = {fcol, ycol};
+    const char *roles[2] = {f->name, plan->response};
+    for (int i = 0; i < 2; i++) {
+        if (cols[i] == -2)
+            data_error(&rs, rec.line, 1, "the header has two columns named \"%s\" (the %s)", names[i],
+                       i == 0 ? "factor" : "response");
+        else if (cols[i] < 0) {
+            strbuf have = {0};
+            for (size_t c = 0; c < rec.nfields && c < 12; c++) {
+                if (c) sb_puts(&have, ", ");
+                put_field(&have, rec.fields[c].ptr, rec.fields[c].len);
+            }
+            if (rec.nfields > 12) sb_puts(&have, ", ...");
+            data_error(&rs, rec.line, 1, "no column \"%s\" for `%s`; the header has %s", names[i], roles[i],
+                       have.s ? have.s : "no names");
+            sb_free(&have);
+        }
+    }
+    if (rs.nerr) goto done;
+    for (;;) {
+        int got = csv_next(r, &rec);
+        if (got == 0) break;
+        if (got < 0) {
+            const csv_error_info *e = csv_error(r);
+            if (e->status == AVOW_EIO)
+                data_error(&rs, e->line, e->col, "cannot read the data file: %s", strerror(e->sys_errno));
+            else
+                data_error(&rs, e->line, e->col, "%s", e->msg);
+            break;
+        }
+        if (rec.blank) { res->blank++; continue; }
+        res->rows++;
+        if (rec.nfields != ncols) {
+            data_error(&rs, rec.line, rec.nfields < ncols ? rec.nfields : ncols + 1,
+                       "this row has %zu field%s; the header has %zu", rec.nfields,
+                       rec.nfields == 1 ? "" : "s", ncols);
+            continue;
+        }
+        const csv_field *lf = &rec.fields[fcol], *yf = &rec.fields[ycol];
+        int miss_level = is_missing(plan, lf->ptr, lf->len);
+        int miss_y = is_missing(plan, yf->ptr, yf->len);
+        if (miss_level || miss_y) {
+            if (miss_y) res->missing_response++;
+            else res->missing_level++;
+            if (res->nmissing_lines < AVOW_MAX_LISTED_MISSING) res->missing_lines[res->nmissing_lines++] = rec.line;
+            continue;
+        }
+        long cell = map_find(&map, lf->ptr, lf->len);
+        if (cell < 0) {
+            strbuf b = {0};
+            put_field(&b, lf->ptr, lf->len);
+            data_error(&rs, rec.line, (size_t)fcol + 1, "%s is not a level of `%s`", b.s ? b.s : "?", f->name);
+            sb_free(&b);
+            for (size_t i = 0; i < f->nlevels; i++)
+                if (f->levels[i].desc && strlen(f->levels[i].desc) == lf->len
+                    && memcmp(f->levels[i].desc, lf->ptr, lf->len) == 0 && rs.nerr <= AVOW_MAX_DATA_ERRORS)
+                    sb_printf(errs, "  hint: the study reads \"%s\" as the description of level `%s`; "
+                                    "separate levels named by strings with commas: \"1\", \"2\"\n",
+                              f->levels[i].desc, f->levels[i].name);
+            continue;
+        }
+        avow_dec v;
+        int pr = dec_parse(yf->ptr, yf->len, &v);
+        if (pr == AVOW_OK) {
+            if (dec_acc_add(&cells[cell], v) != AVOW_OK) {
+                strbuf b = {0};
+                put_field(&b, yf->ptr, yf->len);
+                data_error(&rs, rec.line, (size_t)ycol + 1, "the value %s is too far from the others to be analysed",
+                           b.s ? b.s : "?");
+                sb_free(&b);
+                continue;
+            }
+        } else if (pr == AVOW_EOVERFLOW) {
+            /* More digits than 64 bits hold: read it as the nearest double and say so. */
+            char tmp[512];
+            size_t n = yf->len < sizeof tmp - 1 ? yf->len : sizeof tmp - 1;
+            memcpy(tmp, yf->ptr, n);
+            tmp[n] = 0;
+            char *end;
+            double d = strtod(tmp, &end);
+            if (n != yf->len || *end || dec_acc_add_double(&cells[cell], d) != AVOW_OK) {
+                strbuf b = {0};
+                put_field(&b, yf->ptr, yf->len);
+                data_error(&rs, rec.line, (size_t)ycol + 1, "the value %s is out of range", b.s ? b.s : "?");
+                sb_free(&b);
+                continue;
+            }
+            res->inexact_values++;
+        } else {
+            strbuf b = {0};
+            put_field(&b, yf->ptr, yf->len);
+            const char *why = "is not a number";
+            char low[8] = {0};
+            for (size_t i = 0; i < yf->len && i < 7; i++)
+                low[i] = (char)(yf->ptr[i] >= 'A' && yf->ptr[i] <= 'Z' ? yf->ptr[i] + 32 : yf->ptr[i]);
+            if (strstr(low, "inf") || strstr(low, "nan")) why = "is not a finite number";
+            data_error(&rs, rec.line, (size_t)ycol + 1, "the %s value %s %s", plan->response, b.s ? b.s : "?", why);
+            sb_free(&b);
+            continue;
+        }
+        res->used++;
+    }
+    if (!rs.nerr) {
+        uint64_t N = 0;
+        for (size_t i = 0; i < plan->ncells; i++) {
+            uint64_t n = dec_acc_n(&cells[i]);
+            N += n;
+            if (n == 0)
+                data_error(&rs, 0, 0, "level `%s` has no data", plan_cell_name(plan, i));
+        }
+        if (!rs.nerr && N <= plan->ncells)
+            data_error(&rs, 0, 0, "%llu observations for %zu levels leave no degrees of freedom for the residual",
+                       (unsigned long long)N, plan->ncells);
+    }
+done:
+    if (rs.nerr > AVOW_MAX_DATA_ERRORS)
+        sb_printf(errs, "%s: error: %zu more errors not shown\n", shown, rs.nerr - AVOW_MAX_DATA_ERRORS);
+    csv_close(r);
+    map_free(&map);
+    close(fd);
+    return rs.nerr;
+}

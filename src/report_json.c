@@ -1,0 +1,138 @@
+/* report_json.c: the avow.report/1 JSON contract of `avow run` (ARCHITECTURE.md).
+ * Numbers with 17 significant digits; values that do not exist are null. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "avow/render.h"
+
+/* JSON number with 17 significant digits (round-trips binary64); null when not finite. */
+static void num17(strbuf *o, double v)
+{
+    if (!isfinite(v)) { sb_puts(o, "null"); return; }
+    if (v == 0) { sb_puts(o, "0"); return; }
+    sb_printf(o, "%.17g", v);
+}
+
+static void key(strbuf *o, const char *k)
+{
+    json_string(o, k);
+    sb_puts(o, ": ");
+}
+
+static void contrast_json(strbuf *o, const avow_plan *p, const avow_contrast_result *r, int planned)
+{
+    const plan_contrast *pc = r->pc;
+    sb_puts(o, "{");
+    key(o, "name"); json_string(o, pc->name);
+    sb_puts(o, ", "); key(o, "expression"); json_string(o, pc->expr);
+    sb_puts(o, ", "); key(o, "description"); json_string(o, pc->desc);
+    sb_puts(o, ",\n      "); key(o, "coefficients"); sb_putc(o, '{');
+    for (size_t c = 0; c < p->ncells; c++) {
+        if (c) sb_puts(o, ", ");
+        key(o, plan_cell_name(p, c));
+        num17(o, rat_to_double(pc->coef[c]));
+    }
+    sb_puts(o, "},\n      "); key(o, "coefficients_exact"); sb_putc(o, '{');
+    for (size_t c = 0; c < p->ncells; c++) {
+        char buf[48];
+        if (c) sb_puts(o, ", ");
+        key(o, plan_cell_name(p, c));
+        rat_format(pc->coef[c], buf, sizeof buf);
+        json_string(o, buf);
+    }
+    sb_puts(o, "},\n      ");
+    key(o, "alternative");
+    json_string(o, pc->side == SIDE_GREATER ? "greater" : pc->side == SIDE_LESS ? "less" : "two-sided");
+    sb_puts(o, ", "); key(o, "estimate"); num17(o, r->estimate);
+    sb_puts(o, ", "); key(o, "se"); num17(o, r->se);
+    sb_puts(o, ", "); key(o, "df"); num17(o, r->df);
+    sb_puts(o, ", "); key(o, "t"); num17(o, r->t);
+    sb_puts(o, ",\n      "); key(o, "p"); num17(o, r->p);
+    sb_puts(o, ", "); key(o, "p_adjusted"); num17(o, r->p_adj);
+    sb_puts(o, ", "); key(o, "ci"); sb_putc(o, '['); num17(o, r->ci_lo); sb_puts(o, ", "); num17(o, r->ci_hi);
+    sb_puts(o, "], "); key(o, "ci_simultaneous"); sb_puts(o, r->ci_simultaneous ? "true" : "false");
+    if (planned) { sb_puts(o, ", "); key(o, "ss"); num17(o, r->ss); }
+    sb_puts(o, ", "); key(o, "reject"); sb_puts(o, r->reject ? "true" : "false");
+    sb_putc(o, '}');
+}
+
+void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
+{
+    (void)ctx;
+    sb_puts(o, "{\n  \"format\": \"avow.report/1\",\n");
+    sb_printf(o, "  \"tool\": {\"name\": \"avow\", \"version\": \"%s\"},\n", AVOW_VERSION);
+    sb_puts(o, "  \"study\": {"); key(o, "title"); json_string(o, p->title);
+    sb_puts(o, ", "); key(o, "path"); json_string(o, p->path);
+    sb_puts(o, ", "); key(o, "sha256"); json_string(o, r->study_sha256);
+    sb_puts(o, "},\n  \"data\": {"); key(o, "path"); json_string(o, r->data_shown);
+    sb_puts(o, ", "); key(o, "sha256"); json_string(o, r->data_sha256);
+    sb_printf(o, ", \"rows\": %llu, \"used\": %llu, \"missing\": %llu",
+              (unsigned long long)r->rows, (unsigned long long)r->used,
+              (unsigned long long)(r->missing_response + r->missing_level));
+    sb_printf(o, ", \"missing_response\": %llu, \"missing_level\": %llu, \"blank_lines\": %llu",
+              (unsigned long long)r->missing_response, (unsigned long long)r->missing_level,
+              (unsigned long long)r->blank);
+    sb_puts(o, ", \"missing_lines\": [");
+    for (size_t i = 0; i < r->nmissing_lines; i++)
+        sb_printf(o, "%s%llu", i ? ", " : "", (unsigned long long)r->missing_lines[i]);
+    sb_printf(o, "], \"from_option\": %s, \"locked\": %s, \"exact\": %s, \"inexact_values\": %llu},\n",
+              r->data_from_option ? "true" : "false", p->sha256 ? "true" : "false",
+              r->inexact_values ? "false" : "true", (unsigned long long)r->inexact_values);
+    sb_puts(o, "  \"response\": {"); key(o, "name"); json_string(o, p->response);
+    sb_puts(o, ", "); key(o, "unit"); json_string(o, p->unit);
+    sb_puts(o, "},\n  \"alpha\": "); num17(o, rat_to_double(p->alpha));
+    sb_puts(o, ", \"adjust\": "); json_string(o, mult_name(p->adjust));
+    sb_puts(o, ",\n  \"levels\": [");
+    for (size_t i = 0; i < r->ncells; i++) {
+        const avow_level_result *L = &r->levels[i];
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        key(o, "factor"); json_string(o, p->factors[0].name);
+        sb_puts(o, ", "); key(o, "level"); json_string(o, plan_cell_name(p, i));
+        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)L->n);
+        key(o, "mean"); num17(o, L->mean);
+        sb_puts(o, ", "); key(o, "sd"); num17(o, L->sd);
+        sb_puts(o, ", "); key(o, "min"); num17(o, L->min);
+        sb_puts(o, ", "); key(o, "max"); num17(o, L->max);
+        sb_puts(o, ", "); key(o, "min_exact"); json_string(o, L->min_text);
+        sb_puts(o, ", "); key(o, "max_exact"); json_string(o, L->max_text);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, "\n  ],\n  \"anova\": [");
+    for (int i = 0; i < 3; i++) {
+        const avow_anova_row *A = &r->anova[i];
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        key(o, "source"); json_string(o, A->source);
+        sb_puts(o, ", "); key(o, "df"); num17(o, A->df);
+        sb_puts(o, ", "); key(o, "ss"); num17(o, A->ss);
+        sb_puts(o, ", "); key(o, "ms"); num17(o, A->ms);
+        sb_puts(o, ", "); key(o, "f"); num17(o, A->f);
+        sb_puts(o, ", "); key(o, "p"); num17(o, A->p);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, "\n  ],\n  \"fit\": {"); key(o, "n"); sb_printf(o, "%llu", (unsigned long long)r->n);
+    sb_puts(o, ", "); key(o, "grand_mean"); num17(o, r->grand_mean);
+    sb_puts(o, ", "); key(o, "r_squared"); num17(o, r->r_squared);
+    sb_puts(o, ", "); key(o, "residual_sd"); num17(o, r->resid_sd);
+    sb_puts(o, "},\n  \"contrasts\": [");
+    for (size_t i = 0; i < r->ncontrasts; i++) {
+        sb_puts(o, i ? ",\n    " : "\n    ");
+        contrast_json(o, p, &r->contrasts[i], 1);
+    }
+    sb_puts(o, r->ncontrasts ? "\n  ],\n" : "],\n");
+    sb_printf(o, "  \"contrast_set\": {\"orthogonal\": %s, \"complete\": %s, \"ss_sum\": ",
+              r->orthogonal_set ? "true" : "false", r->complete_set ? "true" : "false");
+    num17(o, r->ncontrasts ? r->contrast_ss_sum : NAN);
+    sb_puts(o, "},\n  \"explore\": [");
+    if (r->nexplores) {
+        sb_puts(o, "\n    {\"method\": \"scheffe\", \"critical_t\": ");
+        num17(o, r->scheffe_crit);
+        sb_puts(o, ", \"comparisons\": [");
+        for (size_t i = 0; i < r->nexplores; i++) {
+            sb_puts(o, i ? ",\n      " : "\n      ");
+            contrast_json(o, p, &r->explores[i], 0);
+        }
+        sb_puts(o, "]}\n  ");
+    }
+    sb_puts(o, "]\n}\n");
+}

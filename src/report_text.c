@@ -1,0 +1,335 @@
+/* report_text.c: the analysis report of `avow run`, for people. Layout and wording are
+ * avow's own. Deterministic bytes: no clock, no locale. */
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "avow/render.h"
+#include "table.h"
+
+/* A number with enough significant digits to show its integer part and four more
+ * (at least six), without exponent unless it is very large or very small. */
+static void fmt_val(char *buf, size_t size, double v)
+{
+    if (!isfinite(v)) { snprintf(buf, size, isnan(v) ? "-" : v > 0 ? "inf" : "-inf"); return; }
+    if (v == 0) { snprintf(buf, size, "0"); return; }
+    double a = fabs(v);
+    int intdigits = a >= 1 ? (int)floor(log10(a)) + 1 : 1;
+    int sig = intdigits + 4 > 6 ? intdigits + 4 : 6;
+    if (sig > 17) sig = 17;
+    if (a >= 1e15 || a < 1e-5) { snprintf(buf, size, "%.*e", 5, v); return; }
+    snprintf(buf, size, "%.*g", sig, v);
+}
+
+/* Decimals that show the largest magnitude among vals with six significant digits (at
+ * least one decimal, at most twelve). One column of a table uses one count. */
+static int column_decimals(const double *vals, size_t n)
+{
+    double m = 0;
+    for (size_t i = 0; i < n; i++) if (isfinite(vals[i]) && fabs(vals[i]) > m) m = fabs(vals[i]);
+    if (m == 0) return 1;
+    int lead = (int)floor(log10(m));      /* position of the leading digit */
+    int d = 5 - lead;
+    if (d < 1) d = 1;
+    if (d > 12) d = 12;
+    return d;
+}
+
+static void fmt_fixed(char *buf, size_t size, double v, int decimals)
+{
+    if (!isfinite(v)) snprintf(buf, size, isnan(v) ? "-" : v > 0 ? "inf" : "-inf");
+    else snprintf(buf, size, "%.*f", decimals, v);
+}
+
+/* A p-value: four decimals, or two significant digits with an exponent below 1e-4. */
+static void fmt_p(char *buf, size_t size, double p)
+{
+    if (isnan(p)) snprintf(buf, size, "-");
+    else if (p == 0) snprintf(buf, size, "0 (below 1e-308)");
+    else if (p < 1e-4) snprintf(buf, size, "%.2e", p);
+    else snprintf(buf, size, "%.4f", p);
+}
+
+static void heading(strbuf *o, const char *title)
+{
+    sb_printf(o, "\n%s\n", title);
+    sb_pad(o, '-', utf8_width(title, strlen(title)));
+    sb_putc(o, '\n');
+}
+
+static const char *method_words(avow_adjust a)
+{
+    switch (a) {
+    case ADJ_NONE: return "no adjustment";
+    case ADJ_BONFERRONI: return "Bonferroni";
+    case ADJ_HOLM: return "Holm step-down";
+    case ADJ_SIDAK: return "Sidak";
+    case ADJ_SCHEFFE: return "Scheffe";
+    case ADJ_FDR: return "Benjamini-Hochberg (false discovery rate)";
+    }
+    return "?";
+}
+
+/* The study file, verbatim, with line numbers. */
+static void echo_study(const avow_ctx *ctx, strbuf *o)
+{
+    for (unsigned l = 1; l <= ctx->nlines; l++) {
+        const char *text; size_t len;
+        ctx_line_text(ctx, l, &text, &len);
+        if (l == ctx->nlines && len == 0) break;   /* after the final newline */
+        sb_printf(o, "%5u  ", l);
+        sb_put(o, text, len);
+        sb_putc(o, '\n');
+    }
+}
+
+/* Decimals shared by the estimates, standard errors and interval ends of rs. */
+static int contrast_decimals(const avow_contrast_result *rs, size_t n)
+{
+    double *vals = avow_calloc(4 * n + 1, sizeof *vals);
+    if (!vals) return 4;
+    for (size_t i = 0; i < n; i++) {
+        vals[4 * i] = rs[i].estimate; vals[4 * i + 1] = rs[i].se;
+        vals[4 * i + 2] = rs[i].ci_lo; vals[4 * i + 3] = rs[i].ci_hi;
+    }
+    int dec = column_decimals(vals, 4 * n);
+    avow_free(vals);
+    return dec;
+}
+
+static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t n, int conf_pct)
+{
+    char a[64], b[160], c[64], d[64];
+    int dec = contrast_decimals(rs, n);
+    table_row(t);
+    table_cell(t, 0, "contrast"); table_cell(t, 1, "estimate"); table_cell(t, 2, "std. error");
+    table_cell(t, 3, "t"); table_cell(t, 4, "df"); table_cell(t, 5, "p");
+    table_cell(t, 6, "p adjusted"); table_cell(t, 7, "%d%% interval", conf_pct); table_cell(t, 8, "finding");
+    for (size_t i = 0; i < n; i++) {
+        const avow_contrast_result *r = &rs[i];
+        table_row(t);
+        table_cell(t, 0, "%s", r->pc->name);
+        fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(t, 1, "%s", a);
+        fmt_fixed(a, sizeof a, r->se, dec); table_cell(t, 2, "%s", a);
+        table_cell(t, 3, "%.3f", r->t);
+        table_cell(t, 4, "%.0f", r->df);
+        fmt_p(a, sizeof a, r->p); table_cell(t, 5, "%s", a);
+        fmt_p(a, sizeof a, r->p_adj); table_cell(t, 6, "%s", a);
+        fmt_fixed(c, sizeof c, r->ci_lo, dec); fmt_fixed(d, sizeof d, r->ci_hi, dec);
+        if (r->pc->side == SIDE_GREATER) snprintf(b, sizeof b, "above %s", c);
+        else if (r->pc->side == SIDE_LESS) snprintf(b, sizeof b, "below %s", d);
+        else snprintf(b, sizeof b, "%s to %s", c, d);
+        table_cell(t, 7, "%s", b);
+        const char *found;
+        if (r->pc->side == SIDE_GREATER) found = r->reject ? "above 0" : "not shown above 0";
+        else if (r->pc->side == SIDE_LESS) found = r->reject ? "below 0" : "not shown below 0";
+        else found = r->reject ? "differs from 0" : "no difference shown";
+        table_cell(t, 8, "%s", found);
+    }
+}
+
+void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
+{
+    char a[64], b[64], c[64];
+    double alpha = rat_to_double(p->alpha);
+    int conf = (int)lround((1 - alpha) * 100);
+    const char *unit = p->unit ? p->unit : "";
+    sb_printf(o, "avow %s -- analysis report\n\n", AVOW_VERSION);
+    text_table t;
+    table_init(&t, 2, "ll");
+    table_row(&t); table_cell(&t, 0, "study"); table_cell(&t, 1, "%s", p->title);
+    table_row(&t); table_cell(&t, 0, "study file"); table_cell(&t, 1, "%s", p->path);
+    table_row(&t); table_cell(&t, 0, "  sha256"); table_cell(&t, 1, "%s", r->study_sha256);
+    table_row(&t); table_cell(&t, 0, "data file");
+    table_cell(&t, 1, "%s%s", r->data_shown, r->data_from_option ? " (given with --data)" : "");
+    table_row(&t); table_cell(&t, 0, "  sha256");
+    table_cell(&t, 1, "%s%s", r->data_sha256, p->sha256 ? " (matches the lock in the study)" : " (not locked)");
+    table_row(&t); table_cell(&t, 0, "rows");
+    table_cell(&t, 1, "%llu read, %llu used, %llu with a missing response, %llu with a missing level",
+               (unsigned long long)r->rows, (unsigned long long)r->used,
+               (unsigned long long)r->missing_response, (unsigned long long)r->missing_level);
+    if (r->nmissing_lines) {
+        strbuf l = {0};
+        for (size_t i = 0; i < r->nmissing_lines; i++)
+            sb_printf(&l, "%s%llu", i ? ", " : "", (unsigned long long)r->missing_lines[i]);
+        uint64_t more = r->missing_response + r->missing_level - r->nmissing_lines;
+        if (more) sb_printf(&l, " and %llu more", (unsigned long long)more);
+        table_row(&t); table_cell(&t, 0, "  missing at lines"); table_cell(&t, 1, "%s", l.s ? l.s : "");
+        sb_free(&l);
+    }
+    if (r->blank) {
+        table_row(&t); table_cell(&t, 0, "  blank lines"); table_cell(&t, 1, "%llu, skipped", (unsigned long long)r->blank);
+    }
+    table_render(&t, 0, o);
+    table_free(&t);
+
+    heading(o, "Study file as read");
+    echo_study(ctx, o);
+
+    strbuf h = {0};
+    sb_printf(&h, "Summaries of %s%s%s%s by %s", p->response, unit[0] ? " (" : "", unit, unit[0] ? ")" : "",
+              p->factors[0].name);
+    heading(o, h.s ? h.s : "Levels");
+    sb_free(&h);
+    table_init(&t, 6, "lrrrrr");
+    table_row(&t);
+    table_cell(&t, 0, "level"); table_cell(&t, 1, "n"); table_cell(&t, 2, "mean");
+    table_cell(&t, 3, "std. dev."); table_cell(&t, 4, "min"); table_cell(&t, 5, "max");
+    double *col = avow_calloc(r->ncells ? r->ncells : 1, sizeof *col);
+    int dmean = 4, dsd = 4;
+    if (col) {
+        for (size_t i = 0; i < r->ncells; i++) col[i] = r->levels[i].mean;
+        dmean = column_decimals(col, r->ncells);
+        for (size_t i = 0; i < r->ncells; i++) col[i] = r->levels[i].sd;
+        dsd = column_decimals(col, r->ncells);
+        avow_free(col);
+    }
+    for (size_t i = 0; i < r->ncells; i++) {
+        const avow_level_result *L = &r->levels[i];
+        table_row(&t);
+        table_cell(&t, 0, "%s", plan_cell_name(p, i));
+        table_cell(&t, 1, "%llu", (unsigned long long)L->n);
+        fmt_fixed(a, sizeof a, L->mean, dmean); table_cell(&t, 2, "%s", a);
+        fmt_fixed(a, sizeof a, L->sd, dsd); table_cell(&t, 3, "%s", a);
+        table_cell(&t, 4, "%s", L->min_text);
+        table_cell(&t, 5, "%s", L->max_text);
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+
+    heading(o, "Analysis of variance");
+    table_init(&t, 6, "lrrrrr");
+    table_row(&t);
+    table_cell(&t, 0, "source"); table_cell(&t, 1, "df"); table_cell(&t, 2, "sum of squares");
+    table_cell(&t, 3, "mean square"); table_cell(&t, 4, "F"); table_cell(&t, 5, "p");
+    double ssv[3] = {r->anova[0].ss, r->anova[1].ss, r->anova[2].ss};
+    double msv[2] = {r->anova[0].ms, r->anova[1].ms};
+    int dss = column_decimals(ssv, 3), dms = column_decimals(msv, 2);
+    for (int i = 0; i < 3; i++) {
+        const avow_anova_row *A = &r->anova[i];
+        table_row(&t);
+        table_cell(&t, 0, "%s", i == 0 ? "between levels" : A->source);
+        table_cell(&t, 1, "%.0f", A->df);
+        fmt_fixed(a, sizeof a, A->ss, dss); table_cell(&t, 2, "%s", a);
+        if (!isnan(A->ms)) { fmt_fixed(a, sizeof a, A->ms, dms); table_cell(&t, 3, "%s", a); }
+        if (!isnan(A->f)) { fmt_val(a, sizeof a, A->f); table_cell(&t, 4, "%s", a); }
+        if (!isnan(A->p)) { fmt_p(a, sizeof a, A->p); table_cell(&t, 5, "%s", a); }
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+    fmt_val(a, sizeof a, r->r_squared);
+    fmt_val(b, sizeof b, r->resid_sd);
+    fmt_val(c, sizeof c, r->grand_mean);
+    sb_printf(o, "   R-squared %s; residual standard deviation %s%s%s; grand mean %s\n", a, b,
+              unit[0] ? " " : "", unit, c);
+    if (isnan(r->anova[0].f))
+        sb_puts(o, "   Every observation equals its level's mean: there is no residual variation, so F\n"
+                   "   and the contrast tests are not defined.\n");
+
+    if (r->ncontrasts) {
+        strbuf hh = {0};
+        sb_printf(&hh, "Planned contrasts: %zu, %s at alpha %s", r->ncontrasts, method_words(p->adjust),
+                  p->alpha_text);
+        heading(o, hh.s ? hh.s : "Planned contrasts");
+        sb_free(&hh);
+        table_init(&t, 9, "lrrrrrrll");
+        contrast_rows(&t, r->contrasts, r->ncontrasts, conf);
+        table_render(&t, 3, o);
+        table_free(&t);
+        sb_putc(o, '\n');
+        int dec = contrast_decimals(r->contrasts, r->ncontrasts);
+        for (size_t i = 0; i < r->ncontrasts; i++) {
+            const avow_contrast_result *x = &r->contrasts[i];
+            char lo[64], hi[64];
+            fmt_fixed(a, sizeof a, x->estimate, dec);
+            fmt_fixed(lo, sizeof lo, x->ci_lo, dec);
+            fmt_fixed(hi, sizeof hi, x->ci_hi, dec);
+            fmt_p(b, sizeof b, x->p_adj);
+            sb_printf(o, "   %s = %s%s\n", x->pc->name, x->pc->expr,
+                      x->pc->side == SIDE_GREATER ? " > 0" : x->pc->side == SIDE_LESS ? " < 0" : "");
+            if (x->pc->desc) sb_printf(o, "      \"%s\"\n", x->pc->desc);
+            sb_printf(o, "      estimate %s%s%s, %d%% interval ", a, unit[0] ? " " : "", unit, conf);
+            if (x->pc->side == SIDE_GREATER) sb_printf(o, "above %s", lo);
+            else if (x->pc->side == SIDE_LESS) sb_printf(o, "below %s", hi);
+            else sb_printf(o, "%s to %s", lo, hi);
+            sb_printf(o, " (%s)\n", x->ci_simultaneous ? "simultaneous" : "per comparison");
+            sb_printf(o, "      adjusted p %s %s %s: ", b, x->reject ? "<=" : ">", p->alpha_text);
+            if (x->pc->side == SIDE_TWO)
+                sb_puts(o, x->reject ? "the data show a difference.\n"
+                                     : "the data do not show a difference at this level.\n");
+            else
+                sb_printf(o, x->reject ? "the data show it %s 0, as declared.\n"
+                                       : "the data do not show it %s 0 at this level.\n",
+                          x->pc->side == SIDE_GREATER ? "above" : "below");
+        }
+    }
+    if (r->nexplores) {
+        heading(o, "Exploratory contrasts (chosen after seeing data; Scheffe, simultaneous)");
+        table_init(&t, 9, "lrrrrrrll");
+        contrast_rows(&t, r->explores, r->nexplores, conf);
+        table_render(&t, 3, o);
+        table_free(&t);
+        sb_putc(o, '\n');
+        for (size_t i = 0; i < r->nexplores; i++)
+            sb_printf(o, "   %s = %s\n", r->explores[i].pc->name, r->explores[i].pc->expr);
+    }
+
+    heading(o, "Notes");
+    if (r->inexact_values)
+        sb_printf(o, "- %llu value%s had more digits than exact arithmetic holds (18 significant digits);\n"
+                     "  they entered as the nearest binary64 number with compensated (double-double) sums.\n"
+                     "  Every other value was taken exactly from its decimal text.\n",
+                  (unsigned long long)r->inexact_values, r->inexact_values == 1 ? "" : "s");
+    else
+        sb_puts(o, "- Every value was taken exactly from its decimal text; sums of squares, means and\n"
+                   "  contrast estimates are exact fractions, rounded once for display.\n");
+    if (r->ncontrasts) {
+        switch (p->adjust) {
+        case ADJ_NONE:
+            if (r->ncontrasts == 1)
+                sb_printf(o, "- One planned contrast, tested at %s: there is nothing to adjust.\n", p->alpha_text);
+            else
+                sb_printf(o, "- No adjustment: each contrast is tested at %s on its own; nothing bounds the chance\n"
+                             "  of at least one false finding among the %zu. Intervals are per comparison.\n",
+                          p->alpha_text, r->ncontrasts);
+            break;
+        case ADJ_BONFERRONI: case ADJ_SIDAK: case ADJ_SCHEFFE:
+            sb_printf(o, "- %s controls the chance of any false finding among the planned contrasts at %s.\n"
+                         "  Its intervals are simultaneous: all of them hold together with %d%% confidence.\n",
+                      method_words(p->adjust), p->alpha_text, conf);
+            break;
+        case ADJ_HOLM:
+            sb_printf(o, "- Holm's step-down method controls the chance of any false finding among the planned\n"
+                         "  contrasts at %s. It defines no simultaneous interval: the intervals shown are per\n"
+                         "  comparison, at %d%% each.\n", p->alpha_text, conf);
+            break;
+        case ADJ_FDR:
+            sb_printf(o, "- The Benjamini-Hochberg method controls the expected share of false findings among\n"
+                         "  the findings at %s, not the chance of any. Intervals are per comparison, at %d%% each.\n",
+                      p->alpha_text, conf);
+            break;
+        }
+        if (r->complete_set) {
+            fmt_val(a, sizeof a, r->contrast_ss_sum);
+            fmt_val(b, sizeof b, r->anova[0].ss);
+            sb_printf(o, "- The %zu planned contrasts are mutually orthogonal with the replicates obtained, so their\n"
+                         "  sums of squares add up to the between-levels sum of squares: %s = %s.\n",
+                      r->ncontrasts, a, b);
+        } else if (r->ncontrasts > 1 && !r->orthogonal_set) {
+            sb_puts(o, "- The planned contrasts are not all orthogonal with the replicates obtained: their tests\n"
+                       "  share information and their sums of squares do not split the between-levels sum.\n");
+        }
+        int one = 0;
+        for (size_t i = 0; i < r->ncontrasts; i++) one |= r->contrasts[i].pc->side != SIDE_TWO;
+        if (one)
+            sb_puts(o, "- One-sided contrasts use the one-sided p-value in their declared direction and a\n"
+                       "  one-sided interval.\n");
+    }
+    if (p->explore_pairs || p->has_versus)
+        sb_printf(o, "- Declared but not computed by this version: %s%s%s.\n",
+                  p->explore_pairs ? "explore pairs" : "", p->explore_pairs && p->has_versus ? " and " : "",
+                  p->has_versus ? "explore versus" : "");
+    sb_puts(o, "- A statistically significant difference is not evidence that a product or process is\n"
+               "  safe. Where people can be hurt, decisions follow the applicable regulations, local\n"
+               "  codes and licensed review.\n");
+}
