@@ -138,9 +138,11 @@ int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res
     avow_oneway ow;
     int rc = dec_oneway(cells, k, &ow);
     if (rc) {
-        sb_puts(errs, "error: the data cannot be analysed (no observations or too many)\n");
+        sb_puts(errs, "the data cannot be analysed (no observations, or more than 2^64)\n");
         return AVOW_EDOM;
     }
+    double *p = NULL, *padj = NULL;
+    int *rej = NULL;
     mpq_t *means = avow_calloc(k, sizeof *means);
     if (!means) { dec_oneway_clear(&ow); return AVOW_ENOMEM; }
     mpq_t ss_i, q;
@@ -188,6 +190,15 @@ int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res
     A[0].p = has_f ? dist_f_q(A[0].f, dfb, dfw) : NAN;
     A[1] = (avow_anova_row){"residual", dfw, ow.ss_within, dec_mpq_get_d(msw), NAN, NAN};
     A[2] = (avow_anova_row){"total", dft, ow.ss_total, NAN, NAN, NAN};
+    /* Results beyond binary64 cannot be shown; say so rather than print infinities. */
+    int finite = isfinite(ow.grand_mean) && isfinite(A[0].ss) && isfinite(A[1].ss) && isfinite(A[2].ss);
+    for (size_t i = 0; i < k && finite; i++) finite = isfinite(res->levels[i].mean) && !isinf(res->levels[i].sd);
+    if (!finite) {
+        sb_puts(errs, "the data's means or sums of squares exceed the range of binary64 numbers "
+                      "(about 1.8e308)\n  hint: rescale the response, for example to other units\n");
+        rc = AVOW_EDOM;
+        goto out;
+    }
     res->mse = A[1].ms;
     res->resid_sd = sqrt(res->mse);
     if (mpq_sgn(ow.q_ss_total) > 0) {
@@ -203,8 +214,9 @@ int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res
     for (size_t i = 0; i < plan->ncontrasts; i++) m += plan->contrasts[i].valid;
     res->contrasts = avow_calloc(m ? m : 1, sizeof *res->contrasts);
     res->explores = avow_calloc(plan->nexplores ? plan->nexplores : 1, sizeof *res->explores);
-    double *p = avow_calloc(m ? m : 1, sizeof *p), *padj = avow_calloc(m ? m : 1, sizeof *padj);
-    int *rej = avow_calloc(m ? m : 1, sizeof *rej);
+    p = avow_calloc(m ? m : 1, sizeof *p);
+    padj = avow_calloc(m ? m : 1, sizeof *padj);
+    rej = avow_calloc(m ? m : 1, sizeof *rej);
     if (!res->contrasts || !res->explores || !p || !padj || !rej) { rc = AVOW_ENOMEM; goto out; }
     for (size_t i = 0, j = 0; i < plan->ncontrasts; i++) {
         if (!plan->contrasts[i].valid) continue;
@@ -234,7 +246,7 @@ int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res
         for (size_t j = 0; j < m; j++) {
             avow_contrast_result *r = &res->contrasts[j];
             r->p_adj = padj[j];
-            r->reject = padj[j] <= alpha;
+            r->reject = padj[j] <= alpha;   /* false when undefined (NaN) */
             int one = r->pc->side != SIDE_TWO;
             double crit;
             switch (plan->adjust) {

@@ -261,8 +261,13 @@ static int cmd_run(int argc, char **argv)
     }
     int arc = eval_analyse(&plan, cells, &res, &errs);
     if (arc != AVOW_OK) {
-        if (errs.len) fwrite(errs.s, 1, errs.len, stderr);
-        else fprintf(stderr, "avow: out of memory\n");
+        if (errs.len) {
+            fprintf(stderr, "%s: error: ", data_path);
+            fwrite(errs.s, 1, errs.len, stderr);
+            fprintf(stderr, "avow: no report was written\n");
+        } else {
+            fprintf(stderr, "avow: out of memory\n");
+        }
         rc = arc == AVOW_EDOM ? EXIT_DATA : EXIT_STUDY;
         goto done;
     }

@@ -10,6 +10,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <unistd.h>
 
 #include <openssl/evp.h>
@@ -163,6 +164,47 @@ static void data_error(read_state *rs, uint64_t line, size_t col, const char *fm
     sb_putc(rs->errs, '\n');
 }
 
+/* Why a label may have matched no level: it is a level's name read from a code, or a
+ * description; otherwise the labels that do match. */
+static void label_hint(const plan_factor *f, const char *s, size_t n, strbuf *errs)
+{
+    for (size_t i = 0; i < f->nlevels; i++) {
+        const plan_level *l = &f->levels[i];
+        if (l->desc && strlen(l->desc) == n && memcmp(l->desc, s, n) == 0) {
+            sb_printf(errs, "  hint: the study reads \"%s\" as the description of level `%s`; "
+                            "separate levels named by strings with commas: \"1\", \"2\"\n", l->desc, l->name);
+            return;
+        }
+        if (l->code && strlen(l->name) == n && memcmp(l->name, s, n) == 0) {
+            sb_printf(errs, "  hint: level `%s` is read from the label \"%s\" (its `code`)\n", l->name, l->code);
+            return;
+        }
+    }
+    for (size_t i = 0; i < f->nlevels; i++) {
+        const char *lab = f->levels[i].code ? f->levels[i].code : f->levels[i].name;
+        if (strlen(lab) == n && strncasecmp(lab, s, n) == 0) {
+            sb_printf(errs, "  hint: labels are case-sensitive; the level's label is \"%s\"\n", lab);
+            return;
+        }
+    }
+    sb_puts(errs, "  hint: the labels of the levels are ");
+    for (size_t i = 0; i < f->nlevels && i < 10; i++) {
+        const char *lab = f->levels[i].code ? f->levels[i].code : f->levels[i].name;
+        sb_printf(errs, "%s\"%s\"", i ? ", " : "", lab);
+    }
+    sb_puts(errs, f->nlevels > 10 ? ", ...\n" : "\n");
+}
+
+/* A hint for a CSV syntax error. */
+static const char *csv_hint(const char *msg)
+{
+    if (strstr(msg, "NUL")) return "the file holds binary bytes; export the sheet as CSV text";
+    if (strstr(msg, "unterminated")) return "a field that starts with \" must end with \"; a quote inside it is written \"\"";
+    if (strstr(msg, "quote inside")) return "quote the whole field, and double the quotes inside it: \"12 \"\"A\"\"\"";
+    if (strstr(msg, "after the closing quote")) return "nothing but the delimiter may follow a closing quote";
+    return NULL;
+}
+
 static char pick_delimiter(const avow_plan *p, const char *path)
 {
     if (p->delimiter) return p->delimiter;
@@ -231,6 +273,13 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             data_error(&rs, rec.line, 1, "no column \"%s\" for `%s`; the header has %s", names[i], roles[i],
                        have.s ? have.s : "no names");
             sb_free(&have);
+            if (rec.nfields == 1) {
+                const char *h = rec.fields[0].ptr;
+                size_t hl = rec.fields[0].len;
+                const char *d = memchr(h, '\t', hl) ? "\\t" : memchr(h, ';', hl) ? ";" : memchr(h, ',', hl) ? "," : NULL;
+                if (d) sb_printf(errs, "  hint: the header is one field; add delimiter \"%s\" to the data block\n", d);
+            }
+            break;
         }
     }
     if (rs.nerr) goto done;
@@ -241,8 +290,11 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             const csv_error_info *e = csv_error(r);
             if (e->status == AVOW_EIO)
                 data_error(&rs, e->line, e->col, "cannot read the data file: %s", strerror(e->sys_errno));
-            else
+            else {
                 data_error(&rs, e->line, e->col, "%s", e->msg);
+                const char *hint = csv_hint(e->msg);
+                if (hint) sb_printf(errs, "  hint: %s\n", hint);
+            }
             break;
         }
         if (rec.blank) { res->blank++; continue; }
@@ -268,12 +320,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             put_field(&b, lf->ptr, lf->len);
             data_error(&rs, rec.line, (size_t)fcol + 1, "%s is not a level of `%s`", b.s ? b.s : "?", f->name);
             sb_free(&b);
-            for (size_t i = 0; i < f->nlevels; i++)
-                if (f->levels[i].desc && strlen(f->levels[i].desc) == lf->len
-                    && memcmp(f->levels[i].desc, lf->ptr, lf->len) == 0 && rs.nerr <= AVOW_MAX_DATA_ERRORS)
-                    sb_printf(errs, "  hint: the study reads \"%s\" as the description of level `%s`; "
-                                    "separate levels named by strings with commas: \"1\", \"2\"\n",
-                              f->levels[i].desc, f->levels[i].name);
+            if (rs.nerr <= AVOW_MAX_DATA_ERRORS) label_hint(f, lf->ptr, lf->len, errs);
             continue;
         }
         avow_dec v;
@@ -313,6 +360,8 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             if (strstr(low, "inf") || strstr(low, "nan")) why = "is not a finite number";
             data_error(&rs, rec.line, (size_t)ycol + 1, "the %s value %s %s", plan->response, b.s ? b.s : "?", why);
             sb_free(&b);
+            if (rs.nerr <= AVOW_MAX_DATA_ERRORS && memchr(yf->ptr, ',', yf->len) && !memchr(yf->ptr, '.', yf->len))
+                sb_puts(errs, "  hint: write decimals with a point: 11.0, not 11,0\n");
             continue;
         }
         res->used++;

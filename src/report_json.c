@@ -76,8 +76,10 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     sb_puts(o, ", \"missing_lines\": [");
     for (size_t i = 0; i < r->nmissing_lines; i++)
         sb_printf(o, "%s%llu", i ? ", " : "", (unsigned long long)r->missing_lines[i]);
-    sb_printf(o, "], \"from_option\": %s, \"locked\": %s, \"exact\": %s, \"inexact_values\": %llu},\n",
+    sb_printf(o, "], \"from_option\": %s, \"locked\": %s, \"lock_checked\": %s, \"exact\": %s, "
+                 "\"inexact_values\": %llu},\n",
               r->data_from_option ? "true" : "false", p->sha256 ? "true" : "false",
+              p->sha256 && !r->data_from_option ? "true" : "false",
               r->inexact_values ? "false" : "true", (unsigned long long)r->inexact_values);
     sb_puts(o, "  \"response\": {"); key(o, "name"); json_string(o, p->response);
     sb_puts(o, ", "); key(o, "unit"); json_string(o, p->unit);
@@ -134,5 +136,7 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         }
         sb_puts(o, "]}\n  ");
     }
-    sb_puts(o, "]\n}\n");
+    sb_puts(o, "],\n  \"caution\": ");
+    json_string(o, AVOW_CAUTION);
+    sb_puts(o, "\n}\n");
 }

@@ -28,6 +28,7 @@ static int column_decimals(const double *vals, size_t n)
     double m = 0;
     for (size_t i = 0; i < n; i++) if (isfinite(vals[i]) && fabs(vals[i]) > m) m = fabs(vals[i]);
     if (m == 0) return 1;
+    if (m >= 1e15) return -1;             /* scientific notation for the whole column */
     int lead = (int)floor(log10(m));      /* position of the leading digit */
     int d = 5 - lead;
     if (d < 1) d = 1;
@@ -38,6 +39,7 @@ static int column_decimals(const double *vals, size_t n)
 static void fmt_fixed(char *buf, size_t size, double v, int decimals)
 {
     if (!isfinite(v)) snprintf(buf, size, isnan(v) ? "-" : v > 0 ? "inf" : "-inf");
+    else if (decimals < 0) snprintf(buf, size, "%.6e", v);
     else snprintf(buf, size, "%.*f", decimals, v);
 }
 
@@ -121,7 +123,8 @@ static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t 
         else snprintf(b, sizeof b, "%s to %s", c, d);
         table_cell(t, 7, "%s", b);
         const char *found;
-        if (r->pc->side == SIDE_GREATER) found = r->reject ? "above 0" : "not shown above 0";
+        if (isnan(r->p_adj)) found = "not defined";
+        else if (r->pc->side == SIDE_GREATER) found = r->reject ? "above 0" : "not shown above 0";
         else if (r->pc->side == SIDE_LESS) found = r->reject ? "below 0" : "not shown below 0";
         else found = r->reject ? "differs from 0" : "no difference shown";
         table_cell(t, 8, "%s", found);
@@ -143,7 +146,10 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     table_row(&t); table_cell(&t, 0, "data file");
     table_cell(&t, 1, "%s%s", r->data_shown, r->data_from_option ? " (given with --data)" : "");
     table_row(&t); table_cell(&t, 0, "  sha256");
-    table_cell(&t, 1, "%s%s", r->data_sha256, p->sha256 ? " (matches the lock in the study)" : " (not locked)");
+    table_cell(&t, 1, "%s%s", r->data_sha256,
+               !p->sha256 ? " (not locked)"
+               : r->data_from_option ? " (the study's lock is for its own data file; not checked)"
+               : " (matches the lock in the study)");
     table_row(&t); table_cell(&t, 0, "rows");
     table_cell(&t, 1, "%llu read, %llu used, %llu with a missing response, %llu with a missing level",
                (unsigned long long)r->rows, (unsigned long long)r->used,
@@ -253,6 +259,10 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             else if (x->pc->side == SIDE_LESS) sb_printf(o, "below %s", hi);
             else sb_printf(o, "%s to %s", lo, hi);
             sb_printf(o, " (%s)\n", x->ci_simultaneous ? "simultaneous" : "per comparison");
+            if (isnan(x->p_adj)) {
+                sb_puts(o, "      no test: without residual variation the contrast has no standard error.\n");
+                continue;
+            }
             sb_printf(o, "      adjusted p %s %s %s: ", b, x->reject ? "<=" : ">", p->alpha_text);
             if (x->pc->side == SIDE_TWO)
                 sb_puts(o, x->reject ? "the data show a difference.\n"
@@ -329,7 +339,5 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         sb_printf(o, "- Declared but not computed by this version: %s%s%s.\n",
                   p->explore_pairs ? "explore pairs" : "", p->explore_pairs && p->has_versus ? " and " : "",
                   p->has_versus ? "explore versus" : "");
-    sb_puts(o, "- A statistically significant difference is not evidence that a product or process is\n"
-               "  safe. Where people can be hurt, decisions follow the applicable regulations, local\n"
-               "  codes and licensed review.\n");
+    sb_printf(o, "- %s\n", AVOW_CAUTION_WRAPPED);
 }

@@ -9,6 +9,14 @@
 
 #define AVOW_VERSION "0.1.0"
 
+/* The standing caution of every report (the text report wraps it). */
+#define AVOW_CAUTION "A statistically significant difference is not evidence that a product, process " \
+    "or treatment is safe. Where people can be hurt, decisions follow the applicable regulations, " \
+    "local codes and licensed review."
+#define AVOW_CAUTION_WRAPPED "A statistically significant difference is not evidence that a product,\n" \
+    "  process or treatment is safe. Where people can be hurt, decisions follow the applicable\n" \
+    "  regulations, local codes and licensed review."
+
 /* The plan review for people. */
 void render_plan_text(const avow_ctx *ctx, const avow_plan *plan, strbuf *out);
 /* The plan as `avow.plan/1` JSON; when the study has errors, only the diagnostics. */
