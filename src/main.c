@@ -111,44 +111,88 @@ static int load(avow_ctx *ctx, const char *path)
     return 0;
 }
 
-static int cmd_check(int argc, char **argv)
+/* Options of a command line, after the command word. */
+typedef struct cli_args {
+    const char *path;       /* the study file */
+    const char *data;       /* --data FILE, or NULL */
+    const char *out;        /* -o FILE, or NULL */
+    int json;               /* --format json */
+    int write;              /* -w */
+} cli_args;
+
+enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8 };
+
+/* Parse the arguments of command `cmd`, accepting the options in `allowed`.
+ * Returns -1 to go on, or the exit status to return (help printed, or misuse). */
+static int parse_args(const char *cmd, int argc, char **argv, int allowed, const char *help, cli_args *a)
 {
-    const char *path = NULL;
-    int json = 0;
+    memset(a, 0, sizeof *a);
     for (int i = 0; i < argc; i++) {
-        const char *a = argv[i];
-        if (strcmp(a, "--format") == 0 || strncmp(a, "--format=", 9) == 0) {
-            const char *v = a[8] == '=' ? a + 9 : (i + 1 < argc ? argv[++i] : NULL);
+        const char *s = argv[i];
+        if ((allowed & OPT_FORMAT) && (strcmp(s, "--format") == 0 || strncmp(s, "--format=", 9) == 0)) {
+            const char *v = s[8] == '=' ? s + 9 : (i + 1 < argc ? argv[++i] : NULL);
             if (!v) return usage_error("--format needs a value: text or json%s", "");
-            if (strcmp(v, "json") == 0) json = 1;
-            else if (strcmp(v, "text") == 0) json = 0;
+            if (strcmp(v, "json") == 0) a->json = 1;
+            else if (strcmp(v, "text") == 0) a->json = 0;
             else return usage_error("unknown format `%s`; the formats are text and json", v);
-        } else if (strcmp(a, "--help") == 0) {
-            fputs(help_check, stdout);
+        } else if ((allowed & OPT_DATA) && (strcmp(s, "--data") == 0 || strncmp(s, "--data=", 7) == 0)) {
+            a->data = s[6] == '=' ? s + 7 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!a->data || !a->data[0]) return usage_error("--data needs a file name%s", "");
+        } else if ((allowed & OPT_OUT) && strcmp(s, "-o") == 0) {
+            a->out = i + 1 < argc ? argv[++i] : NULL;
+            if (!a->out || !a->out[0]) return usage_error("-o needs a file name%s", "");
+        } else if ((allowed & OPT_WRITE) && strcmp(s, "-w") == 0) {
+            a->write = 1;
+        } else if (strcmp(s, "--help") == 0) {
+            fputs(help, stdout);
             return 0;
-        } else if (a[0] == '-' && a[1]) {
-            return usage_error("check: unknown option `%s`", a);
-        } else if (path) {
-            return usage_error("check: one study file at a time (also given: `%s`)", a);
+        } else if (s[0] == '-' && s[1]) {
+            fprintf(stderr, "avow: %s: unknown option `%s`\n(run `avow help %s` for usage)\n", cmd, s, cmd);
+            return EXIT_USAGE;
+        } else if (a->path) {
+            fprintf(stderr, "avow: %s: one study file at a time (also given: `%s`)\n", cmd, s);
+            return EXIT_USAGE;
         } else {
-            path = a;
+            a->path = s;
         }
     }
-    if (!path) return usage_error("check: which study file?%s", "");
+    if (!a->path) {
+        fprintf(stderr, "avow: %s: which study file?\n(run `avow help %s` for usage)\n", cmd, cmd);
+        return EXIT_USAGE;
+    }
+    return -1;
+}
+
+/* Load, parse and check a study; diagnostics are printed. Returns 1 when it has no
+ * errors, 0 when it has, -1 when it could not be read or memory ran out (ctx freed). */
+static int load_checked(const char *path, avow_ctx *ctx, ast_study *study, avow_plan *plan)
+{
+    if (load(ctx, path)) return -1;
+    memset(plan, 0, sizeof *plan);
+    plan->path = path;
+    int ok = parse_study(ctx, study) == 0;
+    if (ok) ok = check_study(ctx, study, plan) == 0;
+    if (ctx->oom) {
+        fprintf(stderr, "avow: out of memory\n");
+        ctx_free(ctx);
+        return -1;
+    }
+    print_diags(ctx);
+    return ok;
+}
+
+static int cmd_check(int argc, char **argv)
+{
+    cli_args a;
+    int r = parse_args("check", argc, argv, OPT_FORMAT, help_check, &a);
+    if (r >= 0) return r;
+    const char *path = a.path;
+    int json = a.json;
     avow_ctx ctx;
-    if (load(&ctx, path)) return EXIT_STUDY;
     ast_study study;
     avow_plan plan;
-    memset(&plan, 0, sizeof plan);
-    plan.path = path;
-    int ok = parse_study(&ctx, &study) == 0;
-    if (ok) ok = check_study(&ctx, &study, &plan) == 0;
-    if (ctx.oom) {
-        fprintf(stderr, "avow: out of memory\n");
-        ctx_free(&ctx);
-        return EXIT_STUDY;
-    }
-    print_diags(&ctx);
+    int ok = load_checked(path, &ctx, &study, &plan);
+    if (ok < 0) return EXIT_STUDY;
     strbuf out = {0};
     if (json) render_plan_json(&ctx, &plan, ok, &out);
     else if (ok) render_plan_text(&ctx, &plan, &out);
@@ -178,43 +222,16 @@ static char *data_location(const char *study_path, const char *rel)
 
 static int cmd_run(int argc, char **argv)
 {
-    const char *path = NULL, *data_opt = NULL, *out_path = NULL;
-    int json = 0;
-    for (int i = 0; i < argc; i++) {
-        const char *a = argv[i];
-        if (strcmp(a, "--format") == 0 || strncmp(a, "--format=", 9) == 0) {
-            const char *v = a[8] == '=' ? a + 9 : (i + 1 < argc ? argv[++i] : NULL);
-            if (!v) return usage_error("--format needs a value: text or json%s", "");
-            if (strcmp(v, "json") == 0) json = 1;
-            else if (strcmp(v, "text") == 0) json = 0;
-            else return usage_error("unknown format `%s`; the formats are text and json", v);
-        } else if (strcmp(a, "--data") == 0 || strncmp(a, "--data=", 7) == 0) {
-            data_opt = a[6] == '=' ? a + 7 : (i + 1 < argc ? argv[++i] : NULL);
-            if (!data_opt || !data_opt[0]) return usage_error("--data needs a file name%s", "");
-        } else if (strcmp(a, "-o") == 0) {
-            out_path = i + 1 < argc ? argv[++i] : NULL;
-            if (!out_path || !out_path[0]) return usage_error("-o needs a file name%s", "");
-        } else if (strcmp(a, "--help") == 0) {
-            fputs(help_run, stdout);
-            return 0;
-        } else if (a[0] == '-' && a[1]) {
-            return usage_error("run: unknown option `%s`", a);
-        } else if (path) {
-            return usage_error("run: one study file at a time (also given: `%s`)", a);
-        } else {
-            path = a;
-        }
-    }
-    if (!path) return usage_error("run: which study file?%s", "");
+    cli_args a;
+    int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_DATA | OPT_OUT, help_run, &a);
+    if (r >= 0) return r;
+    const char *path = a.path, *data_opt = a.data, *out_path = a.out;
+    int json = a.json;
     avow_ctx ctx;
-    if (load(&ctx, path)) return EXIT_STUDY;
     ast_study study;
     avow_plan plan;
-    memset(&plan, 0, sizeof plan);
-    int ok = parse_study(&ctx, &study) == 0;
-    if (ok) ok = check_study(&ctx, &study, &plan) == 0;
-    if (ctx.oom) { fprintf(stderr, "avow: out of memory\n"); ctx_free(&ctx); return EXIT_STUDY; }
-    print_diags(&ctx);
+    int ok = load_checked(path, &ctx, &study, &plan);
+    if (ok < 0) return EXIT_STUDY;
     if (!ok) {
         fprintf(stderr, "%s: %zu error%s, %zu warning%s; nothing was analysed\n", path, ctx.nerrors,
                 ctx.nerrors == 1 ? "" : "s", ctx.nwarnings, ctx.nwarnings == 1 ? "" : "s");
@@ -295,17 +312,11 @@ done:
 
 static int cmd_fmt(int argc, char **argv)
 {
-    const char *path = NULL;
-    int write = 0;
-    for (int i = 0; i < argc; i++) {
-        const char *a = argv[i];
-        if (strcmp(a, "-w") == 0) write = 1;
-        else if (strcmp(a, "--help") == 0) { fputs(help_fmt, stdout); return 0; }
-        else if (a[0] == '-' && a[1]) return usage_error("fmt: unknown option `%s`", a);
-        else if (path) return usage_error("fmt: one study file at a time (also given: `%s`)", a);
-        else path = a;
-    }
-    if (!path) return usage_error("fmt: which study file?%s", "");
+    cli_args a;
+    int r = parse_args("fmt", argc, argv, OPT_WRITE, help_fmt, &a);
+    if (r >= 0) return r;
+    const char *path = a.path;
+    int write = a.write;
     avow_ctx ctx;
     if (load(&ctx, path)) return EXIT_STUDY;
     ast_study study;
