@@ -72,6 +72,7 @@ check: $(B)/avow $(UNITBIN)
 
 demo: $(B)/avow
 	$(B)/avow check examples/cure/cure.avow
+	$(B)/avow run examples/cure/cure.avow
 
 sanitize:
 	$(MAKE) B=build/sanitize OPT=-O1 \
@@ -81,3 +82,8 @@ clean:
 	rm -rf build
 
 -include $(wildcard $(B)/obj/*.d)
+
+# The benchmark (bench/README.md); run by hand, not part of check. Phony: bench/ is a folder.
+.PHONY: bench
+bench: $(B)/avow
+	sh bench/run.sh $(B)/avow
