@@ -10,7 +10,7 @@ CC       ?= cc
 B        ?= build
 SANFLAGS ?=
 OPT      ?= -O2
-CFLAGS_ALL = -std=c11 -Wall -Wextra -Wpedantic -Werror -Wshadow -Wstrict-prototypes \
+CFLAGS_ALL = -std=c11 -pthread -Wall -Wextra -Wpedantic -Werror -Wshadow -Wstrict-prototypes \
              -Wmissing-prototypes -Wno-unused-parameter -D_POSIX_C_SOURCE=200809L \
              $(OPT) -g $(SANFLAGS) -Iinclude -Isrc -I$(B)/gen $(CFLAGS)
 LDLIBS_ALL = -lgsl -lgslcblas -lgmp -lcrypto -lm $(LDLIBS)

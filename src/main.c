@@ -254,9 +254,17 @@ static int cmd_run(int argc, char **argv)
     strbuf errs = {0}, out = {0};
     avow_acc *cells = NULL;
     if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    if (eval_sha256_file(data_path, res.data_sha256) != AVOW_OK) {
-        fprintf(stderr, "%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
-        rc = EXIT_DATA;
+    cells = calloc(plan.ncells, sizeof *cells);
+    if (!cells) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
+    for (size_t i = 0; i < plan.ncells; i++) dec_acc_init(&cells[i]);
+    /* The digest is computed on a second thread while the data are read. */
+    eval_hash_job *job = eval_sha256_start(data_path);
+    size_t nerr = eval_read(&plan, data_path, data_path, cells, &res, &errs);
+    int hrc = eval_sha256_join(job, res.data_sha256);
+    if (hrc != AVOW_OK) {
+        if (hrc == AVOW_ENOMEM) fprintf(stderr, "avow: out of memory\n");
+        else fprintf(stderr, "%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
+        rc = hrc == AVOW_ENOMEM ? EXIT_STUDY : EXIT_DATA;
         goto done;
     }
     if (plan.sha256 && !data_opt && strcmp(plan.sha256, res.data_sha256) != 0) {
@@ -267,10 +275,7 @@ static int cmd_run(int argc, char **argv)
         rc = EXIT_DATA;
         goto done;
     }
-    cells = calloc(plan.ncells, sizeof *cells);
-    if (!cells) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    for (size_t i = 0; i < plan.ncells; i++) dec_acc_init(&cells[i]);
-    if (eval_read(&plan, data_path, data_path, cells, &res, &errs) != 0) {
+    if (nerr != 0) {
         fwrite(errs.s, 1, errs.len, stderr);
         fprintf(stderr, "avow: the data do not fit the study; no report was written\n");
         rc = EXIT_DATA;

@@ -5,6 +5,7 @@
 #include "avow/evaluate.h"
 
 #include <errno.h>
+#include <pthread.h>
 #include <stdarg.h>
 #include <fcntl.h>
 #include <stdio.h>
@@ -66,6 +67,46 @@ int eval_sha256_file(const char *path, char *hex)
     return rc;
 }
 
+/* ---- hashing beside the data pass ---- */
+
+struct eval_hash_job {
+    pthread_t thread;       /* the hashing thread */
+    const char *path;       /* the file */
+    char hex[65];           /* its digest when done */
+    int rc;                 /* eval_sha256_file's status */
+    int err;                /* errno on failure */
+    int started;            /* the thread runs (else the work is done in join) */
+};
+
+static void *hash_main(void *arg)
+{
+    eval_hash_job *j = arg;
+    j->rc = eval_sha256_file(j->path, j->hex);
+    j->err = errno;
+    return NULL;
+}
+
+eval_hash_job *eval_sha256_start(const char *path)
+{
+    eval_hash_job *j = avow_calloc(1, sizeof *j);
+    if (!j) return NULL;
+    j->path = path;
+    j->started = pthread_create(&j->thread, NULL, hash_main, j) == 0;
+    return j;
+}
+
+int eval_sha256_join(eval_hash_job *j, char *hex)
+{
+    if (!j) return AVOW_ENOMEM;
+    if (j->started) pthread_join(j->thread, NULL);
+    else hash_main(j);
+    int rc = j->rc;
+    if (rc == AVOW_OK) memcpy(hex, j->hex, 65);
+    errno = j->err;
+    avow_free(j);
+    return rc;
+}
+
 /* ---- label lookup: open addressing over the level labels ---- */
 
 typedef struct label_map {
@@ -118,10 +159,35 @@ static void map_free(label_map *m)
 
 /* ---- the pass ---- */
 
-static int is_missing(const avow_plan *p, const char *s, size_t n)
+/* The missing-value tokens with their lengths; `lengths` has bit L set when some token
+ * has L bytes (L < 64), so most fields are ruled out by one test. */
+typedef struct missing_set {
+    const char **tok;       /* the tokens */
+    size_t *len;            /* their lengths */
+    size_t n;               /* how many */
+    uint64_t lengths;       /* bit L: a token of L bytes exists (L < 64) */
+    int long_tokens;        /* some token has 64 bytes or more */
+} missing_set;
+
+static int missing_init(missing_set *m, const avow_plan *p)
 {
-    for (size_t i = 0; i < p->nmissing; i++)
-        if (strlen(p->missing[i]) == n && memcmp(p->missing[i], s, n) == 0) return 1;
+    m->tok = p->missing;
+    m->n = p->nmissing;
+    m->len = avow_calloc(m->n ? m->n : 1, sizeof *m->len);
+    if (!m->len) return 0;
+    for (size_t i = 0; i < m->n; i++) {
+        m->len[i] = strlen(m->tok[i]);
+        if (m->len[i] < 64) m->lengths |= (uint64_t)1 << m->len[i];
+        else m->long_tokens = 1;
+    }
+    return 1;
+}
+
+static int is_missing(const missing_set *m, const char *s, size_t n)
+{
+    if (n < 64 ? !(m->lengths >> n & 1) : !m->long_tokens) return 0;
+    for (size_t i = 0; i < m->n; i++)
+        if (m->len[i] == n && memcmp(m->tok[i], s, n) == 0) return 1;
     return 0;
 }
 
@@ -240,9 +306,10 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
     }
     csv_reader *r = NULL;
     label_map map = {0};
-    if (csv_open_fd(fd, res->delimiter, &r) != AVOW_OK || !map_init(&map, f)) {
+    missing_set miss = {0};
+    if (csv_open_fd(fd, res->delimiter, &r) != AVOW_OK || !map_init(&map, f) || !missing_init(&miss, plan)) {
         sb_printf(errs, "%s: error: out of memory\n", shown);
-        csv_close(r); map_free(&map); close(fd);
+        csv_close(r); map_free(&map); avow_free(miss.len); close(fd);
         return 1;
     }
     csv_record rec;
@@ -306,8 +373,8 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             continue;
         }
         const csv_field *lf = &rec.fields[fcol], *yf = &rec.fields[ycol];
-        int miss_level = is_missing(plan, lf->ptr, lf->len);
-        int miss_y = is_missing(plan, yf->ptr, yf->len);
+        int miss_level = is_missing(&miss, lf->ptr, lf->len);
+        int miss_y = is_missing(&miss, yf->ptr, yf->len);
         if (miss_level || miss_y) {
             if (miss_y) res->missing_response++;
             else res->missing_level++;
@@ -383,6 +450,7 @@ done:
         sb_printf(errs, "%s: error: %zu more errors not shown\n", shown, rs.nerr - AVOW_MAX_DATA_ERRORS);
     csv_close(r);
     map_free(&map);
+    avow_free(miss.len);
     close(fd);
     return rs.nerr;
 }

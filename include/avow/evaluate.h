@@ -17,6 +17,13 @@
 /* SHA-256 of a file's bytes as 64 lowercase hex digits (hex holds 65 bytes).
  * Returns AVOW_OK or AVOW_EIO (errno kept). */
 int eval_sha256_file(const char *path, char *hex);
+/* Hash a file on a second thread while the caller reads it (the machine has cores to
+ * spare; the digest is the same). Start returns NULL when out of memory; join waits,
+ * writes the hex digest and returns eval_sha256_file's status (errno kept); it frees
+ * the job. When no thread can be started the work is done in join. */
+typedef struct eval_hash_job eval_hash_job;
+eval_hash_job *eval_sha256_start(const char *path);
+int eval_sha256_join(eval_hash_job *job, char *hex);
 /* SHA-256 of a buffer. */
 void eval_sha256_bytes(const void *bytes, size_t len, char *hex);
 
