@@ -510,6 +510,18 @@ static void test_extremes(void **state)
     CHECK_REL(TQINV(1e-200, 2), 1 / sqrt(2e-200), 1e-14, "t_1e-200(2) = 1/sqrt(2p)");
 }
 
+/* Far t tails above 30 df, where GSL's t tail uses a Cornish-Fisher approximation:
+ * reference values from mpmath 1.2.1 at 40 digits, (1/2) betainc(nu/2, 1/2, 0,
+ * nu/(nu + t^2), regularized). */
+static void test_t_far_tail_large_df(void **state)
+{
+    (void)state;
+    CHECK_REL(dist_t_q(17.1, 31), 1.2222245769629046369e-17, 1e-12, "Q_t(17.1; 31), mpmath 1.2.1");
+    CHECK_REL(dist_t_q(12, 50), 1.2311903126662723162e-16, 1e-12, "Q_t(12; 50), mpmath 1.2.1");
+    CHECK_REL(dist_t_q(8, 31), 2.470131850951689779e-9, 1e-12, "Q_t(8; 31), mpmath 1.2.1");
+    CHECK_REL(dist_t_q(-8, 31), 1 - 2.470131850951689779e-9, 1e-15, "P_t(8; 31) by symmetry, mpmath 1.2.1");
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -527,6 +539,7 @@ int main(void)
         cmocka_unit_test(test_t_symmetry),
         cmocka_unit_test(test_invalid_arguments),
         cmocka_unit_test(test_extremes),
+        cmocka_unit_test(test_t_far_tail_large_df),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
