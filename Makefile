@@ -20,6 +20,8 @@ LIBSRC   := $(filter-out src/main.c,$(SRC))
 LIBOBJ   := $(patsubst src/%.c,$(B)/obj/%.o,$(LIBSRC)) $(B)/obj/lexer.o $(B)/obj/parser.o
 UNITSRC  := $(sort $(wildcard tests/unit/test_*.c))
 UNITBIN  := $(patsubst tests/unit/%.c,$(B)/tests/%,$(UNITSRC))
+TOOLSRC  := $(sort $(wildcard tests/tools/*.c))
+TOOLBIN  := $(patsubst tests/tools/%.c,$(B)/tests/tools/%,$(TOOLSRC))
 DEPSOK   := $(B)/.deps-ok
 
 .PHONY: all check demo sanitize clean deps unit
@@ -65,9 +67,14 @@ $(B)/tests/%: tests/unit/%.c $(B)/libavow.a
 	@mkdir -p $(B)/tests
 	$(CC) $(CFLAGS_ALL) -o $@ $< $(B)/libavow.a -lcmocka $(LDLIBS_ALL)
 
+# Helper programs for the reference checks (tests/ref/*.py), e.g. srange_probe.
+$(B)/tests/tools/%: tests/tools/%.c $(B)/libavow.a
+	@mkdir -p $(B)/tests/tools
+	$(CC) $(CFLAGS_ALL) -o $@ $< $(B)/libavow.a $(LDLIBS_ALL)
+
 unit: $(UNITBIN)
 
-check: $(B)/avow $(UNITBIN)
+check: $(B)/avow $(UNITBIN) $(TOOLBIN)
 	@sh tests/run-all.sh $(B)
 
 demo: $(B)/avow

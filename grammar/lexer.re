@@ -158,6 +158,7 @@ int lex_next(lex_state *l, avow_token *t)
             "alpha"       { TOK(TK_ALPHA); }
             "adjust"      { TOK(TK_ADJUST); }
             "orthogonal"  { TOK(TK_ORTHOGONAL); }
+            "variances"   { TOK(TK_VARIANCES); }
             "contrast"    { TOK(TK_CONTRAST); }
             "explore"     { TOK(TK_EXPLORE); }
             "pairs"       { TOK(TK_PAIRS); }
@@ -248,7 +249,7 @@ static const char *const token_names[] = {
     [TK_FACTOR] = "`factor`", [TK_AT] = "`at`", [TK_CODE] = "`code`", [TK_DATA] = "`data`",
     [TK_FROM] = "`from`", [TK_MISSING] = "`missing`", [TK_SHA256] = "`sha256`",
     [TK_DELIMITER] = "`delimiter`", [TK_ALPHA] = "`alpha`", [TK_ADJUST] = "`adjust`",
-    [TK_ORTHOGONAL] = "`orthogonal`", [TK_CONTRAST] = "`contrast`", [TK_EXPLORE] = "`explore`",
+    [TK_ORTHOGONAL] = "`orthogonal`", [TK_VARIANCES] = "`variances`", [TK_CONTRAST] = "`contrast`", [TK_EXPLORE] = "`explore`",
     [TK_PAIRS] = "`pairs`", [TK_VERSUS] = "`versus`", [TK_MEAN] = "`mean`",
     [TK_TREND] = "`trend`", [TK_PLAN] = "`plan`", [TK_REPLICATES] = "`replicates`",
     [TK_SIGMA] = "`sigma`", [TK_DETECT] = "`detect`", [TK_POWER] = "`power`",

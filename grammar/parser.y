@@ -105,6 +105,9 @@ method(A) ::= SIDAK(T).                      { A = parse_name(&T, 0); }
 method(A) ::= SCHEFFE(T).                    { A = parse_name(&T, 0); }
 method(A) ::= FDR(T).                        { A = parse_name(&T, 0); }
 method(A) ::= IDENT(T).                      { A = parse_name(&T, 0); }
+/* variances equal | variances separate: the word is checked by the checker. */
+stmt(S) ::= VARIANCES(K) IDENT(W).          { S = parse_stmt(ps, ST_VARIANCES, &K); S->name = parse_name(&W, 0);
+                                              parse_end_stmt(ps, S, W.span); }
 stmt(S) ::= ORTHOGONAL(K).                  { S = parse_stmt(ps, ST_ORTHOGONAL, &K);
                                               parse_end_stmt(ps, S, K.span); }
 

@@ -9,7 +9,9 @@
 #include <string.h>
 
 #include "avow/dist.h"
+#include "avow/dunnett.h"
 #include "avow/multiplicity.h"
+#include "avow/srange.h"
 
 /* Exact decimal text of v: plain digits while the number needs at most 6 zeros of
  * padding, scientific notation (d.ddde+N) beyond. */
@@ -62,7 +64,130 @@ void eval_results_free(avow_results *res)
     avow_free(res->levels);
     avow_free(res->contrasts);
     avow_free(res->explores);
+    avow_free(res->pairs);
+    avow_free(res->versus);
     res->levels = NULL; res->contrasts = res->explores = NULL;
+    res->pairs = res->versus = NULL;
+}
+
+/* Exact difference of two means and the factor 1/n_a + 1/n_b, both rounded once. */
+static void pair_basic(mpq_t *means, const avow_results *res, size_t a, size_t b, const mpq_t mse,
+                       avow_pair_result *out)
+{
+    mpq_t d, v, t;
+    mpq_init(d); mpq_init(v); mpq_init(t);
+    mpq_sub(d, means[a], means[b]);
+    set_u64(t, res->levels[a].n);
+    mpq_inv(v, t);
+    set_u64(t, res->levels[b].n);
+    mpq_inv(t, t);
+    mpq_add(v, v, t);
+    mpq_mul(v, v, mse);                 /* SE^2 = MSE (1/n_a + 1/n_b), exactly */
+    out->a = a; out->b = b;
+    out->df = (double)(res->n - res->ncells);
+    out->estimate = dec_mpq_get_d(d);
+    out->se = sqrt(dec_mpq_get_d(v));
+    mpq_clear(d); mpq_clear(v); mpq_clear(t);
+}
+
+/* All pairs by Tukey-Kramer (Kramer 1956): q = |d| / sqrt(MSE/2 (1/n_a + 1/n_b)) referred to
+ * the studentized range with k means and the residual df; simultaneous intervals
+ * d +- q_alpha / sqrt(2) * SE. */
+static int explore_pairs(const avow_plan *plan, mpq_t *means, avow_results *res, const mpq_t mse,
+                         double alpha, double df)
+{
+    size_t k = plan->ncells;
+    size_t n = k * (k - 1) / 2;
+    res->pairs = avow_calloc(n ? n : 1, sizeof *res->pairs);
+    if (!res->pairs) return AVOW_ENOMEM;
+    double q;
+    res->pairs_crit = srange_qinv(alpha, (double)k, df, &q) == 0 ? q : NAN;
+    size_t m = 0;
+    for (size_t b = 0; b < k; b++)
+        for (size_t a = b + 1; a < k; a++) {
+            avow_pair_result *r = &res->pairs[m++];
+            pair_basic(means, res, a, b, mse, r);
+            r->stat = r->se > 0 ? fabs(r->estimate) / r->se * sqrt(2.0) : NAN;
+            r->p_adj = srange_sf(r->stat, (double)k, df);
+            r->reject = r->p_adj <= alpha;
+            double half = res->pairs_crit / sqrt(2.0) * r->se;
+            r->ci_lo = r->estimate - half;
+            r->ci_hi = r->estimate + half;
+        }
+    res->npairs = m;
+    return AVOW_OK;
+}
+
+/* All pairs by Games & Howell (1976), each level with its own variance: SE^2 = s_a^2/n_a +
+ * s_b^2/n_b, q = |d| / sqrt(SE^2 / 2), Welch-Satterthwaite df per pair, referred to the
+ * studentized range with k means; intervals d +- q_alpha(k, df_ab) / sqrt(2) * SE. */
+static int explore_pairs_separate(const avow_plan *plan, mpq_t *means, avow_results *res, double alpha)
+{
+    size_t k = plan->ncells;
+    size_t n = k * (k - 1) / 2;
+    res->pairs = avow_calloc(n ? n : 1, sizeof *res->pairs);
+    if (!res->pairs) return AVOW_ENOMEM;
+    res->pairs_crit = NAN;              /* one per pair: its df differs */
+    size_t m = 0;
+    mpq_t d;
+    mpq_init(d);
+    for (size_t b = 0; b < k; b++)
+        for (size_t a = b + 1; a < k; a++) {
+            avow_pair_result *r = &res->pairs[m++];
+            const avow_level_result *A = &res->levels[a], *B = &res->levels[b];
+            mpq_sub(d, means[a], means[b]);
+            r->a = a; r->b = b;
+            r->estimate = dec_mpq_get_d(d);
+            double va = A->sd * A->sd / (double)A->n, vb = B->sd * B->sd / (double)B->n;
+            double df = (va + vb) * (va + vb) / (va * va / (double)(A->n - 1) + vb * vb / (double)(B->n - 1));
+            r->se = sqrt(va + vb);
+            r->df = df;
+            r->stat = r->se > 0 ? fabs(r->estimate) / r->se * sqrt(2.0) : NAN;
+            r->p_adj = isfinite(df) && df > 0 ? srange_sf(r->stat, (double)k, df) : NAN;
+            r->reject = r->p_adj <= alpha;
+            double q;
+            double half = (isfinite(df) && df > 0 && srange_qinv(alpha, (double)k, df, &q) == 0)
+                          ? q / sqrt(2.0) * r->se : NAN;
+            r->ci_lo = r->estimate - half;
+            r->ci_hi = r->estimate + half;
+        }
+    mpq_clear(d);
+    res->npairs = m;
+    return AVOW_OK;
+}
+
+/* Each level against the control by Dunnett's method (Dunnett 1955; AS 251): t_i =
+ * (mean_i - mean_0) / SE_i, the maximum of |t_i| referred to the many-to-one multivariate
+ * t with correlations lambda_i lambda_j, lambda_i = sqrt(n_i / (n_i + n_0)). */
+static int explore_versus(const avow_plan *plan, mpq_t *means, avow_results *res, const mpq_t mse,
+                          double alpha, double df)
+{
+    size_t k = plan->ncells, c = plan->versus_cell, p = k - 1;
+    res->versus = avow_calloc(p ? p : 1, sizeof *res->versus);
+    double *lambda = avow_calloc(p ? p : 1, sizeof *lambda);
+    if (!res->versus || !lambda) { avow_free(lambda); return AVOW_ENOMEM; }
+    double n0 = (double)res->levels[c].n;
+    for (size_t i = 0, j = 0; i < k; i++) {
+        if (i == c) continue;
+        double ni = (double)res->levels[i].n;
+        lambda[j++] = sqrt(ni / (ni + n0));
+    }
+    double d;
+    res->versus_crit = dunnett_qinv(alpha, lambda, p, df, 1, &d) == 0 ? d : NAN;
+    for (size_t i = 0, j = 0; i < k; i++) {
+        if (i == c) continue;
+        avow_pair_result *r = &res->versus[j++];
+        pair_basic(means, res, i, c, mse, r);
+        r->stat = r->se > 0 ? fabs(r->estimate) / r->se : NAN;
+        double sf;
+        r->p_adj = isnan(r->stat) ? NAN : dunnett_sf(r->stat, lambda, p, df, 1, &sf) == 0 ? sf : NAN;
+        r->reject = r->p_adj <= alpha;
+        r->ci_lo = r->estimate - res->versus_crit * r->se;
+        r->ci_hi = r->estimate + res->versus_crit * r->se;
+    }
+    res->nversus = p;
+    avow_free(lambda);
+    return AVOW_OK;
 }
 
 /* Exact estimate and variance factor of a contrast: L = sum c_i ybar_i and
@@ -302,6 +427,13 @@ int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res
         set_interval(r, res->scheffe_crit);
         res->nexplores = j;
     }
+    if (plan->explore_pairs && k >= 2) {
+        rc = plan->separate_variances ? explore_pairs_separate(plan, means, res, alpha)
+                                      : explore_pairs(plan, means, res, msw, alpha, dfw);
+        if (rc != AVOW_OK) goto out;
+    }
+    if (plan->has_versus && k >= 2 && (rc = explore_versus(plan, means, res, msw, alpha, dfw)) != AVOW_OK)
+        goto out;
 out:
     avow_free(p); avow_free(padj); avow_free(rej);
     for (size_t i = 0; i < k; i++) mpq_clear(means[i]);

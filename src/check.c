@@ -17,7 +17,7 @@
 typedef struct checker {
     avow_ctx *ctx;              /* diagnostics and arena */
     avow_plan *plan;            /* being filled */
-    const ast_stmt *first[ST_PLAN + 1]; /* first statement of each kind */
+    const ast_stmt *first[ST_COUNT]; /* first statement of each kind */
     const ast_stmt *factor_stmt;/* the statement of the (first) factor */
     avow_rat *weights;          /* planned replicates per cell (1 when not planned) */
 } checker;
@@ -100,6 +100,8 @@ static const char *stmt_word(ast_stmt_kind k)
     case ST_EXPLORE_VERSUS: return "explore versus";
     case ST_EXPLORE_CONTRAST: return "explore contrast";
     case ST_PLAN: return "plan";
+    case ST_VARIANCES: return "variances";
+    case ST_COUNT: break;
     }
     return "?";
 }
@@ -945,6 +947,15 @@ static void check_settings(checker *ck)
         diag_hint(ck->ctx, d, "the methods are none, bonferroni, holm, sidak, scheffe and fdr");
     }
     p->orthogonal = ck->first[ST_ORTHOGONAL] != NULL;
+    s = ck->first[ST_VARIANCES];
+    if (s) {
+        if (name_eq(s->name.s, s->name.len, "separate")) p->separate_variances = 1;
+        else if (!name_eq(s->name.s, s->name.len, "equal")) {
+            avow_diag *d = ctx_error(ck->ctx, s->name.span, "`variances` is followed by `equal` or `separate`, not `%s`",
+                                     s->name.s);
+            diag_hint(ck->ctx, d, "variances separate: exploratory pairs use each level's own variance");
+        }
+    }
 }
 
 /* ---- plan block ---- */

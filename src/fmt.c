@@ -328,6 +328,8 @@ static void put_stmt(fmt_state *fs, const ast_stmt *s)
     case ST_ALPHA: sb_puts(o, "alpha "); put_num(&s->num, o); break;
     case ST_ADJUST: sb_puts(o, "adjust "); sb_put(o, s->method.s, s->method.len); break;
     case ST_ORTHOGONAL: sb_puts(o, "orthogonal"); break;
+    case ST_VARIANCES: sb_puts(o, "variances "); put_name(&s->name, o); break;
+    case ST_COUNT: break;
     case ST_CONTRAST: case ST_EXPLORE_CONTRAST: put_contrast(fs, s); break;
     case ST_EXPLORE_PAIRS: sb_puts(o, "explore pairs"); break;
     case ST_EXPLORE_VERSUS:

@@ -128,7 +128,8 @@ static int has(const int *set, int n, int t)
 }
 
 static const int stmt_keywords[] = {TK_STUDY, TK_RESPONSE, TK_FACTOR, TK_DATA, TK_ALPHA,
-                                    TK_ADJUST, TK_ORTHOGONAL, TK_CONTRAST, TK_EXPLORE, TK_PLAN};
+                                    TK_ADJUST, TK_ORTHOGONAL, TK_CONTRAST, TK_EXPLORE, TK_PLAN,
+                                    TK_VARIANCES};
 static const int operators[] = {TK_PLUS, TK_MINUS, TK_STAR, TK_SLASH};
 static const int methods[] = {TK_NONE, TK_BONFERRONI, TK_HOLM, TK_SIDAK, TK_SCHEFFE, TK_FDR};
 
@@ -257,7 +258,7 @@ static void track(parse_state *ps, const avow_token *t)
 {
     switch (t->type) {
     case TK_STUDY: case TK_RESPONSE: case TK_FACTOR: case TK_DATA: case TK_ALPHA:
-    case TK_ADJUST: case TK_ORTHOGONAL: case TK_CONTRAST: case TK_EXPLORE: case TK_PLAN:
+    case TK_ADJUST: case TK_ORTHOGONAL: case TK_CONTRAST: case TK_EXPLORE: case TK_PLAN: case TK_VARIANCES:
         if (!ps->block) ps->stmt = t->type;
         break;
     case TK_LBRACE:
@@ -297,7 +298,7 @@ int parse_study(avow_ctx *ctx, ast_study *out)
             /* A statement keyword at the top level starts a new count. */
             switch (t.type) {
             case TK_STUDY: case TK_RESPONSE: case TK_FACTOR: case TK_DATA: case TK_ALPHA:
-            case TK_ADJUST: case TK_ORTHOGONAL: case TK_EXPLORE: case TK_PLAN:
+            case TK_ADJUST: case TK_ORTHOGONAL: case TK_EXPLORE: case TK_PLAN: case TK_VARIANCES:
                 ps.stmt_tokens = 0;
                 break;
             default: break;

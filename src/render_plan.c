@@ -238,10 +238,11 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
         heading(o, "Exploratory comparisons (reported apart from the planned family, always adjusted)");
         size_t k = p->ncells;
         if (p->explore_pairs)
-            sb_printf(o, "   every pair of levels: %zu comparisons, Tukey-Kramer\n", k * (k - 1) / 2);
+            sb_printf(o, "   every pair of levels: %zu comparison%s, %s\n", k * (k - 1) / 2, k == 2 ? "" : "s",
+                      p->separate_variances ? "Games-Howell (each level's own variance)" : "Tukey-Kramer");
         if (p->has_versus)
-            sb_printf(o, "   every level against %s: %zu comparisons, Dunnett\n",
-                      plan_cell_name(p, p->versus_cell), k - 1);
+            sb_printf(o, "   every level against %s: %zu comparison%s, Dunnett\n",
+                      plan_cell_name(p, p->versus_cell), k - 1, k == 2 ? "" : "s");
         if (p->nexplores) {
             sb_printf(o, "   %zu contrast%s chosen after seeing data, Scheffe:\n\n", p->nexplores,
                       p->nexplores == 1 ? "" : "s");
@@ -451,7 +452,7 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o
     int first = 1;
     size_t k = p->ncells;
     if (p->explore_pairs) {
-        sb_printf(o, "\n    {\"method\": \"tukey-kramer\", \"comparisons\": %zu}", k * (k - 1) / 2);
+        sb_printf(o, "\n    {\"method\": \"%s\", \"comparisons\": %zu}", p->separate_variances ? "games-howell" : "tukey-kramer", k * (k - 1) / 2);
         first = 0;
     }
     if (p->has_versus) {

@@ -57,6 +57,30 @@ static void contrast_json(strbuf *o, const avow_plan *p, const avow_contrast_res
     sb_putc(o, '}');
 }
 
+static void pairs_json(strbuf *o, const avow_plan *p, const avow_pair_result *rs, size_t n)
+{
+    for (size_t i = 0; i < n; i++) {
+        const avow_pair_result *r = &rs[i];
+        const char *a = plan_cell_name(p, r->a), *b = plan_cell_name(p, r->b);
+        strbuf name = {0};
+        sb_printf(&name, "%s - %s", a, b);
+        sb_puts(o, i ? ",\n      {" : "\n      {");
+        key(o, "name"); json_string(o, name.s ? name.s : "");
+        sb_free(&name);
+        sb_puts(o, ", "); key(o, "a"); json_string(o, a);
+        sb_puts(o, ", "); key(o, "b"); json_string(o, b);
+        sb_puts(o, ", "); key(o, "estimate"); num17(o, r->estimate);
+        sb_puts(o, ", "); key(o, "se"); num17(o, r->se);
+        sb_puts(o, ", "); key(o, "df"); num17(o, r->df);
+        sb_puts(o, ", "); key(o, "statistic"); num17(o, r->stat);
+        sb_puts(o, ", "); key(o, "p_adjusted"); num17(o, r->p_adj);
+        sb_puts(o, ", "); key(o, "ci"); sb_putc(o, '['); num17(o, r->ci_lo); sb_puts(o, ", ");
+        num17(o, r->ci_hi); sb_puts(o, "], ");
+        key(o, "reject"); sb_puts(o, r->reject ? "true" : "false");
+        sb_putc(o, '}');
+    }
+}
+
 void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
 {
     (void)ctx;
@@ -126,17 +150,40 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
               r->orthogonal_set ? "true" : "false", r->complete_set ? "true" : "false");
     num17(o, r->ncontrasts ? r->contrast_ss_sum : NAN);
     sb_puts(o, "},\n  \"explore\": [");
+    int first = 1;
+    if (r->npairs) {
+        sb_printf(o, "\n    {\"method\": \"%s\", \"critical_value\": ",
+                  p->separate_variances ? "games-howell" : "tukey-kramer");
+        num17(o, r->pairs_crit);
+        sb_puts(o, ", \"statistic\": \"studentized range\", \"comparisons\": [");
+        pairs_json(o, p, r->pairs, r->npairs);
+        sb_puts(o, "]}");
+        first = 0;
+    }
+    if (r->nversus) {
+        sb_puts(o, first ? "\n    " : ",\n    ");
+        sb_puts(o, "{\"method\": \"dunnett\", \"control\": ");
+        json_string(o, plan_cell_name(p, p->versus_cell));
+        sb_puts(o, ", \"alternative\": \"two-sided\", \"critical_value\": ");
+        num17(o, r->versus_crit);
+        sb_puts(o, ", \"statistic\": \"|t|\", \"comparisons\": [");
+        pairs_json(o, p, r->versus, r->nversus);
+        sb_puts(o, "]}");
+        first = 0;
+    }
     if (r->nexplores) {
-        sb_puts(o, "\n    {\"method\": \"scheffe\", \"critical_t\": ");
+        sb_puts(o, first ? "\n    " : ",\n    ");
+        sb_puts(o, "{\"method\": \"scheffe\", \"critical_t\": ");
         num17(o, r->scheffe_crit);
         sb_puts(o, ", \"comparisons\": [");
         for (size_t i = 0; i < r->nexplores; i++) {
             sb_puts(o, i ? ",\n      " : "\n      ");
             contrast_json(o, p, &r->explores[i], 0);
         }
-        sb_puts(o, "]}\n  ");
+        sb_puts(o, "]}");
+        first = 0;
     }
-    sb_puts(o, "],\n  \"caution\": ");
+    sb_puts(o, first ? "],\n  \"caution\": " : "\n  ],\n  \"caution\": ");
     json_string(o, AVOW_CAUTION);
     sb_puts(o, "\n}\n");
 }

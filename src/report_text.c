@@ -131,6 +131,43 @@ static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t 
     }
 }
 
+/* Rows of exploratory comparisons of two levels. */
+static void pair_table(strbuf *o, const avow_plan *p, const avow_pair_result *rs, size_t n, int conf,
+                       const char *stat)
+{
+    double *vals = avow_calloc(4 * n + 1, sizeof *vals);
+    int dec = 4;
+    if (vals) {
+        for (size_t i = 0; i < n; i++) {
+            vals[4 * i] = rs[i].estimate; vals[4 * i + 1] = rs[i].se;
+            vals[4 * i + 2] = rs[i].ci_lo; vals[4 * i + 3] = rs[i].ci_hi;
+        }
+        dec = column_decimals(vals, 4 * n);
+        avow_free(vals);
+    }
+    text_table t;
+    table_init(&t, 7, "lrrrrll");
+    table_row(&t);
+    table_cell(&t, 0, "comparison"); table_cell(&t, 1, "difference"); table_cell(&t, 2, "std. error");
+    table_cell(&t, 3, "%s", stat); table_cell(&t, 4, "p adjusted"); table_cell(&t, 5, "%d%% interval", conf);
+    table_cell(&t, 6, "finding");
+    for (size_t i = 0; i < n; i++) {
+        const avow_pair_result *r = &rs[i];
+        char a[64], b[64];
+        table_row(&t);
+        table_cell(&t, 0, "%s - %s", plan_cell_name(p, r->a), plan_cell_name(p, r->b));
+        fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(&t, 1, "%s", a);
+        fmt_fixed(a, sizeof a, r->se, dec); table_cell(&t, 2, "%s", a);
+        table_cell(&t, 3, "%.3f", r->stat);
+        fmt_p(a, sizeof a, r->p_adj); table_cell(&t, 4, "%s", a);
+        fmt_fixed(a, sizeof a, r->ci_lo, dec); fmt_fixed(b, sizeof b, r->ci_hi, dec);
+        table_cell(&t, 5, "%s to %s", a, b);
+        table_cell(&t, 6, "%s", isnan(r->p_adj) ? "not defined" : r->reject ? "differ" : "no difference shown");
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+}
+
 void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
 {
     char a[64], b[64], c[64];
@@ -273,6 +310,25 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
                           x->pc->side == SIDE_GREATER ? "above" : "below");
         }
     }
+    if (r->npairs || r->nversus) {
+        heading(o, "Exploratory comparisons (after seeing the data; adjusted, simultaneous intervals)");
+        if (r->npairs && p->separate_variances) {
+            sb_printf(o, "Every pair of levels, Games-Howell: each level's own variance, studentized range for\n"
+                         "%zu means with Welch-Satterthwaite df for each pair\n", r->ncells);
+            pair_table(o, p, r->pairs, r->npairs, conf, "q");
+        } else if (r->npairs) {
+            fmt_val(a, sizeof a, r->pairs_crit);
+            sb_printf(o, "Every pair of levels, Tukey-Kramer: studentized range for %zu means and %.0f df,\n"
+                         "upper %s point %s\n", r->ncells, r->anova[1].df, p->alpha_text, a);
+            pair_table(o, p, r->pairs, r->npairs, conf, "q");
+        }
+        if (r->nversus) {
+            fmt_val(a, sizeof a, r->versus_crit);
+            sb_printf(o, "%sEach level against %s, Dunnett (two-sided): critical |t| %s\n",
+                      r->npairs ? "\n" : "", plan_cell_name(p, p->versus_cell), a);
+            pair_table(o, p, r->versus, r->nversus, conf, "|t|");
+        }
+    }
     if (r->nexplores) {
         heading(o, "Exploratory contrasts (chosen after seeing data; Scheffe, simultaneous)");
         table_init(&t, 9, "lrrrrrrll");
@@ -335,9 +391,9 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             sb_puts(o, "- One-sided contrasts use the one-sided p-value in their declared direction and a\n"
                        "  one-sided interval.\n");
     }
-    if (p->explore_pairs || p->has_versus)
-        sb_printf(o, "- Declared but not computed by this version: %s%s%s.\n",
-                  p->explore_pairs ? "explore pairs" : "", p->explore_pairs && p->has_versus ? " and " : "",
-                  p->has_versus ? "explore versus" : "");
+    if (r->npairs || r->nversus || r->nexplores)
+        sb_puts(o, "- Exploratory comparisons were chosen after seeing the data or as a screen of every\n"
+                   "  difference; they are adjusted for the whole set they belong to, and their findings\n"
+                   "  are leads to confirm in a new study, not conclusions.\n");
     sb_printf(o, "- %s\n", AVOW_CAUTION_WRAPPED);
 }

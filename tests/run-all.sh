@@ -20,7 +20,7 @@ done
 for s in tests/ref/*.py; do
     [ -f "$s" ] || continue
     echo "== reference: $(basename "$s")"
-    AVOW="$B/avow" /usr/bin/python3 "$s"; record "$(basename "$s")" $?
+    AVOW="$B/avow" AVOW_PROBES="$B/tests/tools" /usr/bin/python3 "$s"; record "$(basename "$s")" $?
 done
 echo
 [ -n "$failed" ] && echo "failed suites:$failed"

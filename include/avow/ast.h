@@ -98,7 +98,9 @@ typedef struct ast_plan_item {
 
 typedef enum {
     ST_STUDY, ST_RESPONSE, ST_FACTOR, ST_DATA, ST_ALPHA, ST_ADJUST, ST_ORTHOGONAL,
-    ST_CONTRAST, ST_EXPLORE_PAIRS, ST_EXPLORE_VERSUS, ST_EXPLORE_CONTRAST, ST_PLAN
+    ST_CONTRAST, ST_EXPLORE_PAIRS, ST_EXPLORE_VERSUS, ST_EXPLORE_CONTRAST, ST_PLAN,
+    ST_VARIANCES,
+    ST_COUNT            /* number of statement kinds */
 } ast_stmt_kind;
 
 /* Direction of a planned contrast. */

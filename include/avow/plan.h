@@ -65,6 +65,7 @@ typedef struct avow_plan {
     const char *alpha_text;     /* as written, or "0.05" by default */
     avow_adjust adjust;         /* adjustment of planned contrasts */
     int orthogonal;             /* policy: planned contrasts must be orthogonal */
+    int separate_variances;     /* `variances separate`: pairs by Games-Howell */
 
     plan_contrast *contrasts;   /* planned contrasts, in source order */
     size_t ncontrasts;

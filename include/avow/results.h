@@ -44,6 +44,18 @@ typedef struct avow_contrast_result {
     int reject;             /* decision at the study's alpha after adjustment */
 } avow_contrast_result;
 
+/* One exploratory comparison of two levels (all pairs, or a level against the control). */
+typedef struct avow_pair_result {
+    size_t a, b;            /* the cells compared: estimate = mean(a) - mean(b) */
+    double estimate;        /* difference of the two means */
+    double se;              /* its standard error: sqrt(MSE (1/n_a + 1/n_b)) */
+    double stat;            /* the test statistic (studentized range q, or Dunnett's |t|) */
+    double df;              /* degrees of freedom (residual; Welch-Satterthwaite per pair) */
+    double p_adj;           /* adjusted p-value for the whole set of comparisons */
+    double ci_lo, ci_hi;    /* simultaneous interval for the whole set */
+    int reject;             /* p_adj <= alpha */
+} avow_pair_result;
+
 /* Everything `avow run` reports. */
 typedef struct avow_results {
     /* inputs */
@@ -87,6 +99,12 @@ typedef struct avow_results {
     avow_contrast_result *explores;     /* exploratory contrasts (Scheffe) */
     size_t nexplores;
     double scheffe_crit;    /* sqrt((k - 1) F_alpha(k - 1, N - k)) */
+    avow_pair_result *pairs;    /* explore pairs: every pair, Tukey-Kramer */
+    size_t npairs;
+    double pairs_crit;      /* studentized range upper-alpha point q; intervals use q/sqrt(2) */
+    avow_pair_result *versus;   /* explore versus: each level against the control, Dunnett */
+    size_t nversus;
+    double versus_crit;     /* Dunnett's two-sided critical value */
 } avow_results;
 
 #endif
