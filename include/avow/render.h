@@ -13,8 +13,8 @@
 #define AVOW_CAUTION "A statistically significant difference is not evidence that a product, process " \
     "or treatment is safe. Where people can be hurt, decisions follow the applicable regulations, " \
     "local codes and licensed review."
-#define AVOW_CAUTION_WRAPPED "A statistically significant difference is not evidence that a product,\n" \
-    "  process or treatment is safe. Where people can be hurt, decisions follow the applicable\n" \
+#define AVOW_CAUTION_WRAPPED "A statistically significant difference is not evidence that a product, process or\n" \
+    "  treatment is safe. Where people can be hurt, decisions follow the applicable\n" \
     "  regulations, local codes and licensed review."
 
 /* The plan review for people. */
