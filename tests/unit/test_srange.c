@@ -22,6 +22,8 @@
 #include <setjmp.h>
 #include <cmocka.h>
 
+#include "numcheck.h"
+
 #include <math.h>
 #include <pthread.h>
 #include <stdio.h>
@@ -34,31 +36,7 @@
 
 /* ---- checking helpers: each prints what it checked when it fails ---- */
 
-/* Fail unless |got - want| <= tol |want| (NaN fails). */
-static void rel_at(double got, double want, double tol, const char *what,
-                   const char *file, int line)
-{
-    double err = fabs(got - want) / fabs(want);
-    if (!(err <= tol)) {
-        print_error("%s: got %.17g, want %.17g: relative error %.3g > %.3g\n",
-                    what, got, want, err, tol);
-        _fail(file, line);
-    }
-}
-#define CHECK_REL(got, want, tol, what) rel_at((got), (want), (tol), (what), __FILE__, __LINE__)
 
-/* Fail unless |got - want| <= tol (NaN fails). */
-static void abs_at(double got, double want, double tol, const char *what,
-                   const char *file, int line)
-{
-    double err = fabs(got - want);
-    if (!(err <= tol)) {
-        print_error("%s: got %.17g, want %.17g +- %.3g: off by %.3g\n",
-                    what, got, want, tol, err);
-        _fail(file, line);
-    }
-}
-#define CHECK_ABS(got, want, tol, what) abs_at((got), (want), (tol), (what), __FILE__, __LINE__)
 
 /* Fail unless got == want exactly (as doubles; NaN fails unless both are NaN). */
 static void eq_at(double got, double want, const char *what, const char *file, int line)
