@@ -225,6 +225,16 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         dmean = column_decimals(col, r->ncells);
         for (size_t i = 0; i < r->ncells; i++) col[i] = r->levels[i].sd;
         dsd = column_decimals(col, r->ncells);
+        /* Means on a large offset: show as many decimals as the spread needs, but no
+         * more digits than a binary64 number holds (15 significant). */
+        double mmax = 0;
+        for (size_t i = 0; i < r->ncells; i++)
+            if (isfinite(r->levels[i].mean) && fabs(r->levels[i].mean) > mmax) mmax = fabs(r->levels[i].mean);
+        /* (Only when the means dwarf their spread by four orders of magnitude or more.) */
+        if (dmean >= 0 && dsd >= dmean + 4 && mmax > 0) {
+            int room = 14 - (int)floor(log10(mmax));
+            dmean = dsd < room ? dsd : room > dmean ? room : dmean;
+        }
         avow_free(col);
     }
     for (size_t i = 0; i < r->ncells; i++) {
