@@ -173,7 +173,7 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     }
     if (r->nexplores) {
         sb_puts(o, first ? "\n    " : ",\n    ");
-        sb_puts(o, "{\"method\": \"scheffe\", \"critical_t\": ");
+        sb_puts(o, "{\"method\": \"scheffe\", \"critical_value\": ");
         num17(o, r->scheffe_crit);
         sb_puts(o, ", \"comparisons\": [");
         for (size_t i = 0; i < r->nexplores; i++) {

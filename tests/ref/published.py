@@ -70,7 +70,7 @@ check("contrast CI low", c["ci"][0], -4.239171434810681, rel_tol=1e-12)
 check("contrast CI high", c["ci"][1], -1.3608285651893188, rel_tol=1e-12)
 check("Scheffe CI low", e["ci"][0], -4.6412787404729565, rel_tol=1e-12)
 check("Scheffe CI high", e["ci"][1], -0.9587212595270428, rel_tol=1e-12)
-check("Scheffe multiplier", r["explore"][0]["critical_t"], 2.7875773835545425, rel_tol=1e-12)
+check("Scheffe multiplier", r["explore"][0]["critical_value"], 2.7875773835545425, rel_tol=1e-12)
 
 print("published example: %d passed, %d failed" % (passed, failed))
 sys.exit(1 if failed else 0)

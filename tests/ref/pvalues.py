@@ -225,7 +225,7 @@ def verify(name, rep, rows, k, alpha, adjust):
             check(what + " interval half-width / se", crit, crit_ref, QUANT_RTOL)
     for e in rep["explore"]:
         # scipy.stats.f.ppf (SciPy 1.10.1), polished, as above.
-        check(name + " explore critical_t", e["critical_t"], scheffe, QUANT_RTOL)
+        check(name + " explore critical_value", e["critical_value"], scheffe, QUANT_RTOL)
     return a["p"], [c["p"] for c in rep["contrasts"]]
 
 
