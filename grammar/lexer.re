@@ -148,6 +148,9 @@ int lex_next(lex_state *l, avow_token *t)
             "response"    { TOK(TK_RESPONSE); }
             "unit"        { TOK(TK_UNIT); }
             "factor"      { TOK(TK_FACTOR); }
+            "block"       { TOK(TK_BLOCK); }
+            "interactions" { TOK(TK_INTERACTIONS); }
+            "within"      { TOK(TK_WITHIN); }
             "at"          { TOK(TK_AT); }
             "code"        { TOK(TK_CODE); }
             "data"        { TOK(TK_DATA); }
@@ -246,7 +249,8 @@ static const char *const token_names[] = {
     [TK_LBRACE] = "'{'", [TK_RBRACE] = "'}'", [TK_LPAREN] = "'('", [TK_RPAREN] = "')'",
     [TK_COMMA] = "','", [TK_DOT] = "'.'", [TK_EQ] = "'='", [TK_GT] = "'>'", [TK_LT] = "'<'",
     [TK_STUDY] = "`study`", [TK_RESPONSE] = "`response`", [TK_UNIT] = "`unit`",
-    [TK_FACTOR] = "`factor`", [TK_AT] = "`at`", [TK_CODE] = "`code`", [TK_DATA] = "`data`",
+    [TK_FACTOR] = "`factor`", [TK_BLOCK] = "`block`", [TK_INTERACTIONS] = "`interactions`",
+    [TK_WITHIN] = "`within`", [TK_AT] = "`at`", [TK_CODE] = "`code`", [TK_DATA] = "`data`",
     [TK_FROM] = "`from`", [TK_MISSING] = "`missing`", [TK_SHA256] = "`sha256`",
     [TK_DELIMITER] = "`delimiter`", [TK_ALPHA] = "`alpha`", [TK_ADJUST] = "`adjust`",
     [TK_ORTHOGONAL] = "`orthogonal`", [TK_VARIANCES] = "`variances`", [TK_CONTRAST] = "`contrast`", [TK_EXPLORE] = "`explore`",

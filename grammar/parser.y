@@ -118,6 +118,24 @@ stmt(S) ::= FACTOR(K) IDENT(N) opt_string(L) LBRACE(B) levels(V) RBRACE(R).
       S->levels = V.head; S->has_block = 1; S->lbrace = B.span; S->rbrace = R.span;
       parse_end_stmt(ps, S, R.span); }
 
+/* A blocking factor: levels declared, or taken from the data when no braces follow. */
+stmt(S) ::= BLOCK(K) IDENT(N) opt_string(L) LBRACE(B) levels(V) RBRACE(R).
+    { S = parse_stmt(ps, ST_BLOCK, &K); S->name = parse_name(&N, 0); S->str = L;
+      S->levels = V.head; S->has_block = 1; S->lbrace = B.span; S->rbrace = R.span;
+      parse_end_stmt(ps, S, R.span); }
+stmt(S) ::= BLOCK(K) IDENT(N) opt_string(L).
+    { S = parse_stmt(ps, ST_BLOCK, &K); S->name = parse_name(&N, 0); S->str = L;
+      parse_end_stmt(ps, S, L ? L->span : N.span); }
+
+/* interactions all | none | pairs: which interactions of the treatment factors the model
+ * keeps (the word is checked by the checker). */
+stmt(S) ::= INTERACTIONS(K) IDENT(W).       { S = parse_stmt(ps, ST_INTERACTIONS, &K); S->name = parse_name(&W, 0);
+                                              parse_end_stmt(ps, S, W.span); }
+stmt(S) ::= INTERACTIONS(K) NONE(W).        { S = parse_stmt(ps, ST_INTERACTIONS, &K); S->name = parse_name(&W, 0);
+                                              parse_end_stmt(ps, S, W.span); }
+stmt(S) ::= INTERACTIONS(K) PAIRS(W).       { S = parse_stmt(ps, ST_INTERACTIONS, &K); S->name = parse_name(&W, 0);
+                                              parse_end_stmt(ps, S, W.span); }
+
 levels(A) ::= .                              { A.head = A.tail = NULL; }
 levels(A) ::= levels(B) level(L).            { A = B; if (!A.head) A.head = L; else A.tail->next = L;
                                               A.tail = L; }
@@ -179,9 +197,19 @@ stmt(S) ::= EXPLORE(K) CONTRAST contrast_body(B).
 stmt(S) ::= EXPLORE(K) PAIRS(P).            { S = parse_stmt(ps, ST_EXPLORE_PAIRS, &K);
                                               S->key = span_join(K.span, P.span);
                                               parse_end_stmt(ps, S, P.span); }
+stmt(S) ::= EXPLORE(K) PAIRS(P) IDENT(F).   { S = parse_stmt(ps, ST_EXPLORE_PAIRS, &K);
+                                              S->key = span_join(K.span, P.span); S->factor = parse_name(&F, 0);
+                                              parse_end_stmt(ps, S, F.span); }
+stmt(S) ::= EXPLORE(K) PAIRS(P) IDENT(F) WITHIN IDENT(W).
+    { S = parse_stmt(ps, ST_EXPLORE_PAIRS, &K); S->key = span_join(K.span, P.span);
+      S->factor = parse_name(&F, 0); S->within = parse_name(&W, 0); parse_end_stmt(ps, S, W.span); }
 stmt(S) ::= EXPLORE(K) VERSUS(V) levelref(L).
     { S = parse_stmt(ps, ST_EXPLORE_VERSUS, &K); S->key = span_join(K.span, V.span);
       S->name = L->level; S->factor = L->factor; parse_end_stmt(ps, S, L->span); }
+stmt(S) ::= EXPLORE(K) VERSUS(V) levelref(L) WITHIN IDENT(W).
+    { S = parse_stmt(ps, ST_EXPLORE_VERSUS, &K); S->key = span_join(K.span, V.span);
+      S->name = L->level; S->factor = L->factor; S->within = parse_name(&W, 0);
+      parse_end_stmt(ps, S, W.span); }
 
 contrast_body(S) ::= IDENT(N) EQ expr(E).
     { S = parse_stmt(ps, ST_CONTRAST, &N); S->name = parse_name(&N, 0); S->expr = E;

@@ -101,6 +101,8 @@ static const char *stmt_word(ast_stmt_kind k)
     case ST_EXPLORE_CONTRAST: return "explore contrast";
     case ST_PLAN: return "plan";
     case ST_VARIANCES: return "variances";
+    case ST_BLOCK: return "block";
+    case ST_INTERACTIONS: return "interactions";
     case ST_COUNT: break;
     }
     return "?";
@@ -111,6 +113,7 @@ static void collect_singletons(checker *ck, const ast_study *st)
     for (const ast_stmt *s = st->stmts; s; s = s->next) {
         switch (s->kind) {
         case ST_FACTOR: case ST_CONTRAST: case ST_EXPLORE_CONTRAST: case ST_EXPLORE_VERSUS:
+        case ST_EXPLORE_PAIRS:
             if (!ck->first[s->kind]) ck->first[s->kind] = s;
             continue;
         default: break;
@@ -246,6 +249,41 @@ static void check_factor_levels(checker *ck, const ast_stmt *s, plan_factor *f)
     avow_free(decl);
 }
 
+/* Build the model's treatment terms: every non-empty subset of the factors up to the
+ * order the `interactions` statement allows, main effects first, then by order, each
+ * order in the factors' declaration order (binary counting of the subset masks). */
+static void build_terms(checker *ck)
+{
+    avow_plan *p = ck->plan;
+    size_t k = p->nfactors;
+    if (!k) return;
+    size_t maxorder = p->interactions == INTER_NONE ? 1 : p->interactions == INTER_PAIRS ? 2 : k;
+    size_t n = 0;
+    for (unsigned m = 1; m < (1u << k); m++) if ((size_t)__builtin_popcount(m) <= maxorder) n++;
+    p->terms = arena_alloc(ck->ctx->arena, n * sizeof *p->terms);
+    if (!p->terms) { ck->ctx->oom = 1; return; }
+    for (size_t order = 1; order <= maxorder; order++)
+        for (unsigned m = 1; m < (1u << k); m++) {
+            if ((size_t)__builtin_popcount(m) != order) continue;
+            plan_term *t = &p->terms[p->nterms++];
+            t->mask = m;
+            t->order = order;
+            t->df = 1;
+            strbuf b = {0};
+            for (size_t f = 0; f < k; f++) {
+                if (!(m >> f & 1)) continue;
+                if (b.len) sb_puts(&b, " by ");
+                sb_puts(&b, p->factors[f].name);
+                t->df *= p->factors[f].nlevels > 0 ? p->factors[f].nlevels - 1 : 0;
+            }
+            t->name = b.s ? arena_strndup(ck->ctx->arena, b.s, b.len) : NULL;
+            if (!t->name) ck->ctx->oom = 1;
+            sb_free(&b);
+            p->treat_df += t->df;
+        }
+    p->saturated = !p->block && maxorder == k;
+}
+
 static void check_factors(checker *ck, const ast_study *st)
 {
     size_t n = 0;
@@ -253,7 +291,8 @@ static void check_factors(checker *ck, const ast_study *st)
     if (!n) return;
     ck->plan->factors = arena_alloc(ck->ctx->arena, n * sizeof(plan_factor));
     if (!ck->plan->factors) { ck->ctx->oom = 1; return; }
-    const ast_stmt *firsts[8] = {0};
+    const ast_stmt **firsts = avow_calloc(n, sizeof *firsts);
+    if (!firsts) { ck->ctx->oom = 1; return; }
     size_t k = 0;
     for (const ast_stmt *s = st->stmts; s; s = s->next) {
         if (s->kind != ST_FACTOR) continue;
@@ -261,73 +300,166 @@ static void check_factors(checker *ck, const ast_study *st)
             avow_diag *d = ctx_error(ck->ctx, s->name.span, "`%s` is already the response's name", s->name.s);
             diag_related(ck->ctx, d, ck->first[ST_RESPONSE]->name.span, "the response is declared here");
         }
-        if (k > 0) {
-            int dup = 0;
-            for (size_t j = 0; j < k && j < 8; j++)
-                if (strcmp(ck->plan->factors[j].name, s->name.s) == 0) {
-                    avow_diag *d = ctx_error(ck->ctx, s->name.span, "factor `%s` is declared twice", s->name.s);
-                    diag_related(ck->ctx, d, firsts[j]->name.span, "first declared here");
-                    dup = 1;
-                }
-            if (!dup) {
-                avow_diag *d = ctx_error(ck->ctx, s->key,
-                                         "a second factor (`%s`): this version analyses one treatment factor",
-                                         s->name.s);
-                diag_related(ck->ctx, d, firsts[0]->name.span, "the first factor is declared here");
+        int dup = 0;
+        for (size_t j = 0; j < k; j++)
+            if (strcmp(ck->plan->factors[j].name, s->name.s) == 0) {
+                avow_diag *d = ctx_error(ck->ctx, s->name.span, "factor `%s` is declared twice", s->name.s);
+                diag_related(ck->ctx, d, firsts[j]->name.span, "first declared here");
+                dup = 1;
             }
+        if (dup) continue;
+        if (k == AVOW_MAX_FACTORS) {
+            ctx_error(ck->ctx, s->key, "a study may cross at most %d treatment factors", AVOW_MAX_FACTORS);
             continue;
         }
         check_factor_levels(ck, s, &ck->plan->factors[k]);
-        if (k < 8) firsts[k] = s;
-        k++;
+        firsts[k++] = s;
     }
     ck->plan->nfactors = k;
     ck->factor_stmt = firsts[0];
-    ck->plan->ncells = ck->plan->factors[0].nlevels;
+    size_t cells = 1;
+    for (size_t i = 0; i < k; i++) {
+        size_t nl = ck->plan->factors[i].nlevels;
+        if (nl && cells > AVOW_MAX_CELLS / nl) {
+            avow_diag *d = ctx_error(ck->ctx, firsts[i]->key,
+                                     "the factors cross into more than %d treatment cells", AVOW_MAX_CELLS);
+            diag_hint(ck->ctx, d, "a designed experiment with this many combinations is better split into stages");
+            cells = 0;
+            break;
+        }
+        cells *= nl;
+    }
+    ck->plan->ncells = k ? cells : 0;
+    avow_free(firsts);
+}
+
+/* The blocking factor: its levels as declared, or none (taken from the data). */
+static void check_block(checker *ck, const ast_study *st)
+{
+    avow_plan *p = ck->plan;
+    const ast_stmt *s = ck->first[ST_BLOCK];
+    if (!s) return;
+    p->block = arena_alloc(ck->ctx->arena, sizeof *p->block);
+    if (!p->block) { ck->ctx->oom = 1; return; }
+    for (size_t i = 0; i < p->nfactors; i++)
+        if (strcmp(p->factors[i].name, s->name.s) == 0) {
+            avow_diag *d = ctx_error(ck->ctx, s->name.span, "`%s` is already a treatment factor", s->name.s);
+            diag_related(ck->ctx, d, p->factors[i].span, "the factor is declared here");
+        }
+    if (p->response && strcmp(s->name.s, p->response) == 0)
+        ctx_error(ck->ctx, s->name.span, "`%s` is already the response's name", s->name.s);
+    if (s->has_block) {
+        check_factor_levels(ck, s, p->block);
+    } else {
+        p->block->name = s->name.s;
+        p->block->label = s->str ? s->str->s : NULL;
+        p->block->span = s->span;
+        p->block->levels = NULL;
+        p->block->nlevels = 0;
+        p->block_from_data = 1;
+    }
+    (void)st;
+}
+
+static void check_interactions(checker *ck)
+{
+    avow_plan *p = ck->plan;
+    const ast_stmt *s = ck->first[ST_INTERACTIONS];
+    p->interactions = INTER_ALL;
+    if (!s) return;
+    if (name_eq(s->name.s, s->name.len, "none")) p->interactions = INTER_NONE;
+    else if (name_eq(s->name.s, s->name.len, "pairs")) p->interactions = INTER_PAIRS;
+    else if (!name_eq(s->name.s, s->name.len, "all")) {
+        avow_diag *d = ctx_error(ck->ctx, s->name.span, "`interactions` is followed by `all`, `pairs` or `none`, not `%s`",
+                                 s->name.s);
+        diag_hint(ck->ctx, d, "interactions none: main effects only (an additive model)");
+    }
+    if (p->nfactors < 2 && p->interactions != INTER_ALL) {
+        avow_diag *d = ctx_warning(ck->ctx, s->span, "`interactions %s` has no effect with one treatment factor",
+                                   s->name.s);
+        diag_hint(ck->ctx, d, "interactions are between crossed factors; declare a second `factor`");
+    }
+}
+
+size_t plan_cell_level(const avow_plan *plan, size_t cell, size_t f)
+{
+    size_t stride = 1;
+    for (size_t g = plan->nfactors; g-- > f + 1;) stride *= plan->factors[g].nlevels;
+    return (cell / stride) % plan->factors[f].nlevels;
+}
+
+/* Name every treatment cell once, into the plan (arena). */
+static void name_cells(checker *ck)
+{
+    avow_plan *plan = ck->plan;
+    if (!plan->ncells) return;
+    plan->cell_names = arena_alloc(ck->ctx->arena, plan->ncells * sizeof *plan->cell_names);
+    if (!plan->cell_names) { ck->ctx->oom = 1; return; }
+    for (size_t cell = 0; cell < plan->ncells; cell++) {
+        if (plan->nfactors == 1) { plan->cell_names[cell] = plan->factors[0].levels[cell].name; continue; }
+        strbuf b = {0};
+        sb_puts(&b, "cell(");
+        for (size_t f = 0; f < plan->nfactors; f++) {
+            const char *nm = plan->factors[f].levels[plan_cell_level(plan, cell, f)].name;
+            if (f) sb_puts(&b, ", ");
+            fmt_name(nm, strlen(nm), 0, &b);
+        }
+        sb_putc(&b, ')');
+        plan->cell_names[cell] = b.s ? arena_strndup(ck->ctx->arena, b.s, b.len) : NULL;
+        if (!plan->cell_names[cell]) { ck->ctx->oom = 1; plan->cell_names[cell] = "?"; }
+        sb_free(&b);
+    }
 }
 
 const char *plan_cell_name(const avow_plan *plan, size_t cell)
 {
-    if (plan->nfactors == 0 || cell >= plan->factors[0].nlevels) return "?";
-    return plan->factors[0].levels[cell].name;
+    if (!plan->cell_names || cell >= plan->ncells) return "?";
+    return plan->cell_names[cell];
+}
+
+int plan_term_code(const avow_plan *plan, const plan_term *term, size_t cell, size_t j)
+{
+    int v = 1;
+    for (size_t f = plan->nfactors; f-- > 0;) {
+        if (!(term->mask >> f & 1)) continue;
+        size_t L = plan->factors[f].nlevels, jf = j % (L - 1);
+        j /= L - 1;
+        size_t l = plan_cell_level(plan, cell, f);
+        if (l == L - 1) v = -v;
+        else if (l != jf) return 0;
+    }
+    return v;
+}
+
+size_t plan_model_params(const avow_plan *plan)
+{
+    if (plan->block && plan->block_from_data) return 0;
+    return 1 + plan->treat_df + (plan->block && plan->block->nlevels ? plan->block->nlevels - 1 : 0);
+}
+
+const char *plan_column_role(const avow_plan *plan, size_t col)
+{
+    if (col < plan->nfactors) return plan->factors[col].name;
+    if (plan->block && col == plan->nfactors) return plan->block->name;
+    return plan->response;
 }
 
 /* ---- level references ---- */
 
-/* Resolve a (maybe factor-qualified) level reference to a cell; -1 after an error. */
-static long resolve_level(checker *ck, const ast_name *factor, const ast_name *level)
+/* Suggest the closest level name among the levels of the factors in `only` (bit f),
+ * or say where the levels are declared. */
+static void level_suggest(checker *ck, avow_diag *d, const ast_name *level, unsigned only)
 {
     avow_plan *p = ck->plan;
-    if (p->nfactors == 0) return -1;
-    if (factor && factor->len) {
-        size_t fi;
-        for (fi = 0; fi < p->nfactors; fi++) if (strcmp(p->factors[fi].name, factor->s) == 0) break;
-        if (fi == p->nfactors) {
-            avow_diag *d = ctx_error(ck->ctx, factor->span, "unknown factor `%s`", factor->s);
-            const char *cands[1] = {p->factors[0].name};
-            const char *c = closest(factor->s, factor->len, cands, 1);
-            if (c) diag_hint(ck->ctx, d, "did you mean `%s`?", c);
-            return -1;
-        }
-    }
-    const plan_factor *f = &p->factors[0];
-    for (size_t i = 0; i < f->nlevels; i++)
-        if (name_eq(level->s, level->len, f->levels[i].name)) return (long)i;
-    avow_diag *d = ctx_error(ck->ctx, level->span, "unknown level `%s`", level->s);
-    for (size_t i = 0; i < f->nlevels; i++)
-        if (f->levels[i].code && name_eq(level->s, level->len, f->levels[i].code)) {
-            diag_hint(ck->ctx, d, "\"%s\" is the data code of level `%s`; refer to levels by name",
-                      f->levels[i].code, f->levels[i].name);
-            return -1;
-        }
-    if (name_eq(level->s, level->len, f->name)) {
-        diag_hint(ck->ctx, d, "`%s` is the factor; name one of its levels", f->name);
-        return -1;
-    }
-    const char **cands = avow_calloc(f->nlevels ? f->nlevels : 1, sizeof *cands);
-    if (!cands) { ck->ctx->oom = 1; return -1; }
-    for (size_t i = 0; i < f->nlevels; i++) cands[i] = f->levels[i].name;
-    const char *c = closest(level->s, level->len, cands, f->nlevels);
+    size_t total = 0;
+    for (size_t f = 0; f < p->nfactors; f++) if (only >> f & 1) total += p->factors[f].nlevels;
+    const char **cands = avow_calloc(total ? total : 1, sizeof *cands);
+    if (!cands) { ck->ctx->oom = 1; return; }
+    size_t n = 0;
+    for (size_t f = 0; f < p->nfactors; f++)
+        if (only >> f & 1)
+            for (size_t i = 0; i < p->factors[f].nlevels; i++) cands[n++] = p->factors[f].levels[i].name;
+    const char *c = closest(level->s, level->len, cands, n);
     avow_free(cands);
     if (c) {
         strbuf b = {0};
@@ -335,12 +467,96 @@ static long resolve_level(checker *ck, const ast_name *factor, const ast_name *l
         diag_hint(ck->ctx, d, "did you mean %s%s%s?", b.s && b.s[0] == '"' ? "" : "`",
                   b.s ? b.s : c, b.s && b.s[0] == '"' ? "" : "`");
         sb_free(&b);
-    } else {
-        unsigned line, col;
-        ctx_line_col(ck->ctx, f->span.start, &line, &col);
-        diag_hint(ck->ctx, d, "the levels of `%s` are declared at line %u", f->name, line);
+        return;
     }
-    return -1;
+    for (size_t f = 0; f < p->nfactors; f++)
+        if (only >> f & 1) {
+            unsigned line, col;
+            ctx_line_col(ck->ctx, p->factors[f].span.start, &line, &col);
+            diag_hint(ck->ctx, d, "the levels of `%s` are declared at line %u", p->factors[f].name, line);
+            return;
+        }
+}
+
+/* Resolve a (maybe factor-qualified) level reference to a factor and one of its levels.
+ * Returns 1, or 0 after an error. */
+static int resolve_ref(checker *ck, const ast_name *factor, const ast_name *level, size_t *fo, size_t *lo)
+{
+    avow_plan *p = ck->plan;
+    if (p->nfactors == 0) return 0;
+    unsigned only = (1u << p->nfactors) - 1;
+    if (factor && factor->len) {
+        size_t fi;
+        for (fi = 0; fi < p->nfactors; fi++) if (strcmp(p->factors[fi].name, factor->s) == 0) break;
+        if (fi == p->nfactors) {
+            if (p->block && strcmp(p->block->name, factor->s) == 0) {
+                avow_diag *d = ctx_error(ck->ctx, factor->span, "`%s` is the block; comparisons are between treatments",
+                                         factor->s);
+                diag_hint(ck->ctx, d, "blocks are averaged out of every comparison");
+                return 0;
+            }
+            avow_diag *d = ctx_error(ck->ctx, factor->span, "unknown factor `%s`", factor->s);
+            const char **cands = avow_calloc(p->nfactors, sizeof *cands);
+            if (!cands) { ck->ctx->oom = 1; return 0; }
+            for (size_t i = 0; i < p->nfactors; i++) cands[i] = p->factors[i].name;
+            const char *c = closest(factor->s, factor->len, cands, p->nfactors);
+            avow_free(cands);
+            if (c) diag_hint(ck->ctx, d, "did you mean `%s`?", c);
+            return 0;
+        }
+        only = 1u << fi;
+    }
+    size_t found = 0, ff = 0, fl = 0, second = 0;
+    for (size_t f = 0; f < p->nfactors; f++) {
+        if (!(only >> f & 1)) continue;
+        const plan_factor *pf = &p->factors[f];
+        for (size_t i = 0; i < pf->nlevels; i++)
+            if (name_eq(level->s, level->len, pf->levels[i].name)) {
+                if (found++ == 0) { ff = f; fl = i; }
+                else second = f;
+            }
+    }
+    if (found == 1) { *fo = ff; *lo = fl; return 1; }
+    if (found > 1) {
+        avow_diag *d = ctx_error(ck->ctx, level->span, "`%s` is a level of both `%s` and `%s`",
+                                 level->s, p->factors[ff].name, p->factors[second].name);
+        diag_hint(ck->ctx, d, "name the factor too: %s.%s", p->factors[ff].name, level->s);
+        return 0;
+    }
+    avow_diag *d = ctx_error(ck->ctx, level->span, "unknown level `%s`", level->s);
+    for (size_t f = 0; f < p->nfactors; f++) {
+        if (!(only >> f & 1)) continue;
+        const plan_factor *pf = &p->factors[f];
+        for (size_t i = 0; i < pf->nlevels; i++)
+            if (pf->levels[i].code && name_eq(level->s, level->len, pf->levels[i].code)) {
+                diag_hint(ck->ctx, d, "\"%s\" is the data code of level `%s`; refer to levels by name",
+                          pf->levels[i].code, pf->levels[i].name);
+                return 0;
+            }
+        if (name_eq(level->s, level->len, pf->name)) {
+            diag_hint(ck->ctx, d, "`%s` is the factor; name one of its levels", pf->name);
+            return 0;
+        }
+    }
+    if (p->block) {
+        for (size_t i = 0; i < p->block->nlevels; i++)
+            if (name_eq(level->s, level->len, p->block->levels[i].name)) {
+                diag_hint(ck->ctx, d, "`%s` is a level of the block `%s`; comparisons are between treatments",
+                          level->s, p->block->name);
+                return 0;
+            }
+    }
+    level_suggest(ck, d, level, only);
+    return 0;
+}
+
+/* Resolve a reference to a treatment cell when the study has one factor (a level is a
+ * cell); -1 after an error. */
+static long resolve_level(checker *ck, const ast_name *factor, const ast_name *level)
+{
+    size_t f, l;
+    if (!resolve_ref(ck, factor, level, &f, &l)) return -1;
+    return (long)l;
 }
 
 /* ---- contrast reduction ---- */
@@ -399,6 +615,21 @@ static int lin_scale(checker *ck, linval *a, avow_rat f, int divide, avow_span s
     return 1;
 }
 
+/* v += scale * (the marginal mean of level l of factor f): scale / G on each of the G
+ * cells with that level (the mean of a level averages the other factors' levels
+ * equally). */
+static int marginal_add(checker *ck, linval *v, size_t f, size_t l, avow_rat scale, avow_span span)
+{
+    avow_plan *p = ck->plan;
+    size_t G = p->ncells / p->factors[f].nlevels;
+    avow_rat w;
+    if (rat_div(scale, rat_int((int64_t)G), &w)) { overflow_error(ck, span); return 0; }
+    for (size_t c = 0; c < p->ncells; c++)
+        if (plan_cell_level(p, c, f) == l && rat_add(v->c[c], w, &v->c[c])) { overflow_error(ck, span); return 0; }
+    v->levels = 1;
+    return 1;
+}
+
 static int reduce(checker *ck, const ast_expr *e, linval *out);
 
 static int reduce_mean(checker *ck, const ast_expr *e, linval *out)
@@ -410,38 +641,191 @@ static int reduce_mean(checker *ck, const ast_expr *e, linval *out)
         diag_hint(ck->ctx, d, "for example mean(a, b)");
         return 0;
     }
-    long *seen = avow_calloc(ck->plan->ncells ? ck->plan->ncells : 1, sizeof *seen);
-    if (!seen) { ck->ctx->oom = 1; return 0; }
-    const ast_expr **where = avow_calloc(ck->plan->ncells ? ck->plan->ncells : 1, sizeof *where);
-    if (!where) { avow_free(seen); ck->ctx->oom = 1; return 0; }
+    size_t nargs = 0;
+    for (const ast_expr *a = e->args; a; a = a->next) nargs++;
+    size_t *fs = avow_calloc(nargs, sizeof *fs), *ls = avow_calloc(nargs, sizeof *ls);
+    const ast_expr **where = avow_calloc(nargs, sizeof *where);
+    if (!fs || !ls || !where) { avow_free(fs); avow_free(ls); avow_free(where); ck->ctx->oom = 1; return 0; }
     for (const ast_expr *a = e->args; a; a = a->next) {
-        m++;
         if (a->kind != EX_REF) {
             avow_diag *d = ctx_error(ck->ctx, a->span, "mean() takes level names, not expressions");
             diag_hint(ck->ctx, d, "average expressions with arithmetic: (a + 2*b)/3");
             ok = 0;
             continue;
         }
-        long cell = resolve_level(ck, &a->factor, &a->level);
-        if (cell < 0) { ok = 0; continue; }
-        if (seen[cell]) {
-            avow_diag *d = ctx_error(ck->ctx, a->span, "level `%s` appears twice in mean()",
-                                     plan_cell_name(ck->plan, (size_t)cell));
-            diag_related(ck->ctx, d, where[cell]->span, "it first appears here");
-            diag_hint(ck->ctx, d, "to weight a level, write the weights out: (2*a + b)/3");
+        size_t f, l;
+        if (!resolve_ref(ck, &a->factor, &a->level, &f, &l)) { ok = 0; continue; }
+        int dup = 0;
+        for (size_t j = 0; j < m; j++)
+            if (fs[j] == f && ls[j] == l) {
+                avow_diag *d = ctx_error(ck->ctx, a->span, "level `%s` appears twice in mean()",
+                                         ck->plan->factors[f].levels[l].name);
+                diag_related(ck->ctx, d, where[j]->span, "it first appears here");
+                diag_hint(ck->ctx, d, "to weight a level, write the weights out: (2*a + b)/3");
+                ok = 0;
+                dup = 1;
+            }
+        if (dup) continue;
+        fs[m] = f; ls[m] = l; where[m] = a;
+        m++;
+    }
+    avow_rat w;
+    if (ok && rat_make(1, (int64_t)m, &w)) { overflow_error(ck, e->span); ok = 0; }
+    for (size_t j = 0; ok && j < m; j++) ok = marginal_add(ck, out, fs[j], ls[j], w, e->span);
+    avow_free(fs); avow_free(ls); avow_free(where);
+    return ok;
+}
+
+/* cell(L1, L2, ...): the mean of the cells that have all the given levels (one level per
+ * factor at most; the factors left out are averaged equally). */
+static int reduce_cell(checker *ck, const ast_expr *e, linval *out)
+{
+    avow_plan *p = ck->plan;
+    if (!e->args) {
+        avow_diag *d = ctx_error(ck->ctx, e->span, "cell() needs a level of at least one factor");
+        diag_hint(ck->ctx, d, "for example cell(%s)", p->nfactors > 1 ? "a, high" : "a");
+        return 0;
+    }
+    long lev[AVOW_MAX_FACTORS];
+    const ast_expr *where[AVOW_MAX_FACTORS] = {0};
+    for (size_t f = 0; f < AVOW_MAX_FACTORS; f++) lev[f] = -1;
+    int ok = 1;
+    for (const ast_expr *a = e->args; a; a = a->next) {
+        if (a->kind != EX_REF) {
+            avow_diag *d = ctx_error(ck->ctx, a->span, "cell() takes level names, one per factor");
+            diag_hint(ck->ctx, d, "for example cell(a, high)");
             ok = 0;
             continue;
         }
-        seen[cell] = 1;
-        where[cell] = a;
+        size_t f, l;
+        if (!resolve_ref(ck, &a->factor, &a->level, &f, &l)) { ok = 0; continue; }
+        if (where[f]) {
+            avow_diag *d = ctx_error(ck->ctx, a->span, "cell() names two levels of `%s`", p->factors[f].name);
+            diag_related(ck->ctx, d, where[f]->span, "the first is here");
+            diag_hint(ck->ctx, d, "a cell has one level of each factor; to average levels use mean()");
+            ok = 0;
+            continue;
+        }
+        where[f] = a;
+        lev[f] = (long)l;
+    }
+    if (!ok) return 0;
+    size_t G = 0;
+    for (size_t c = 0; c < p->ncells; c++) {
+        int match = 1;
+        for (size_t f = 0; f < p->nfactors && match; f++)
+            if (lev[f] >= 0 && plan_cell_level(p, c, f) != (size_t)lev[f]) match = 0;
+        if (match) G++;
+    }
+    avow_rat w;
+    if (rat_make(1, (int64_t)G, &w)) { overflow_error(ck, e->span); return 0; }
+    for (size_t c = 0; c < p->ncells; c++) {
+        int match = 1;
+        for (size_t f = 0; f < p->nfactors && match; f++)
+            if (lev[f] >= 0 && plan_cell_level(p, c, f) != (size_t)lev[f]) match = 0;
+        if (match) out->c[c] = w;
+    }
+    out->levels = 1;
+    return 1;
+}
+
+/* The factor a cell vector is a pure contrast of: constant over the other factors, so
+ * that v[cell] = a[level of f] / G. Returns the factor and fills a (per level sums), or
+ * -1 when v varies with more than one factor (or none). */
+static long pure_factor(checker *ck, const avow_rat *v, avow_rat *a, int *overflow)
+{
+    avow_plan *p = ck->plan;
+    *overflow = 0;
+    for (size_t f = 0; f < p->nfactors; f++) {
+        size_t L = p->factors[f].nlevels, G = p->ncells / L;
+        for (size_t l = 0; l < L; l++) a[l] = RAT_ZERO;
+        for (size_t c = 0; c < p->ncells; c++) {
+            size_t l = plan_cell_level(p, c, f);
+            if (rat_add(a[l], v[c], &a[l])) { *overflow = 1; return -1; }
+        }
+        int pure = 1;
+        for (size_t c = 0; c < p->ncells && pure; c++) {
+            avow_rat want;
+            if (rat_div(a[plan_cell_level(p, c, f)], rat_int((int64_t)G), &want)) { *overflow = 1; return -1; }
+            if (rat_cmp(want, v[c]) != 0) pure = 0;
+        }
+        int any = 0;
+        for (size_t l = 0; l < L; l++) if (!rat_is_zero(a[l])) any = 1;
+        if (pure && any) return (long)f;
+    }
+    return -1;
+}
+
+/* interaction(E1, E2, ...): each argument a contrast among the levels of one factor,
+ * distinct factors; the result is their product over the cells (the interaction
+ * contrast: does the first comparison change with the second?), averaged over the
+ * factors left out. */
+static int reduce_interaction(checker *ck, const ast_expr *e, linval *out)
+{
+    avow_plan *p = ck->plan;
+    size_t nargs = 0;
+    for (const ast_expr *a = e->args; a; a = a->next) nargs++;
+    if (nargs < 2) {
+        avow_diag *d = ctx_error(ck->ctx, e->span, "interaction() takes two or more contrasts, each on another factor");
+        diag_hint(ck->ctx, d, "for example interaction(high - low, resinA - resinB)");
+        return 0;
+    }
+    avow_rat *coef[AVOW_MAX_FACTORS] = {0};
+    const ast_expr *where[AVOW_MAX_FACTORS] = {0};
+    int ok = 1;
+    for (const ast_expr *a = e->args; a; a = a->next) {
+        linval v;
+        if (!lin_alloc(ck, &v)) { ok = 0; break; }
+        if (!reduce(ck, a, &v)) { lin_free(&v); ok = 0; continue; }
+        avow_rat sum = RAT_ZERO;
+        for (size_t c = 0; c < p->ncells; c++) rat_add(sum, v.c[c], &sum);
+        if (!v.levels || !rat_is_zero(v.k)) {
+            ctx_error(ck->ctx, a->span, "each argument of interaction() compares levels of one factor");
+            lin_free(&v); ok = 0; continue;
+        }
+        avow_rat *lv = avow_calloc(AVOW_MAX_LEVELS, sizeof *lv);
+        if (!lv) { ck->ctx->oom = 1; lin_free(&v); ok = 0; break; }
+        int of;
+        long f = pure_factor(ck, v.c, lv, &of);
+        lin_free(&v);
+        if (of) { overflow_error(ck, a->span); avow_free(lv); ok = 0; continue; }
+        if (f < 0) {
+            avow_diag *d = ctx_error(ck->ctx, a->span, "this argument of interaction() mixes levels of several factors");
+            diag_hint(ck->ctx, d, "give one comparison per factor, e.g. interaction(high - low, a - b)");
+            avow_free(lv); ok = 0; continue;
+        }
+        avow_rat lsum = RAT_ZERO;
+        for (size_t l = 0; l < p->factors[f].nlevels; l++) rat_add(lsum, lv[l], &lsum);
+        if (!rat_is_zero(lsum)) {
+            char buf[48];
+            rat_str(lsum, buf);
+            avow_diag *d = ctx_error(ck->ctx, a->span, "the coefficients of this comparison sum to %s, not 0", buf);
+            diag_hint(ck->ctx, d, "each argument of interaction() is itself a contrast, e.g. high - low");
+            avow_free(lv); ok = 0; continue;
+        }
+        if (coef[f]) {
+            avow_diag *d = ctx_error(ck->ctx, a->span, "interaction() has two comparisons of `%s`", p->factors[f].name);
+            diag_related(ck->ctx, d, where[f]->span, "the first is here");
+            avow_free(lv); ok = 0; continue;
+        }
+        coef[f] = lv;
+        where[f] = a;
     }
     if (ok) {
-        for (size_t i = 0; i < ck->plan->ncells; i++)
-            if (seen[i] && rat_make(1, (int64_t)m, &out->c[i])) { overflow_error(ck, e->span); ok = 0; break; }
+        size_t G = 1;
+        for (size_t f = 0; f < p->nfactors; f++) if (!coef[f]) G *= p->factors[f].nlevels;
+        for (size_t c = 0; c < p->ncells && ok; c++) {
+            avow_rat x;
+            if (rat_make(1, (int64_t)G, &x)) { overflow_error(ck, e->span); ok = 0; break; }
+            for (size_t f = 0; f < p->nfactors; f++)
+                if (coef[f] && rat_mul(x, coef[f][plan_cell_level(p, c, f)], &x)) {
+                    overflow_error(ck, e->span); ok = 0; break;
+                }
+            out->c[c] = x;
+        }
         out->levels = 1;
     }
-    avow_free(seen);
-    avow_free(where);
+    for (size_t f = 0; f < AVOW_MAX_FACTORS; f++) avow_free(coef[f]);
     return ok;
 }
 
@@ -459,8 +843,9 @@ static int reduce_trend(checker *ck, const ast_expr *e, linval *out)
         return 0;
     }
     const plan_factor *f = NULL;
+    size_t fidx = 0;
     for (size_t i = 0; i < ck->plan->nfactors; i++)
-        if (name_eq(fa->level.s, fa->level.len, ck->plan->factors[i].name)) f = &ck->plan->factors[i];
+        if (name_eq(fa->level.s, fa->level.len, ck->plan->factors[i].name)) { f = &ck->plan->factors[i]; fidx = i; }
     if (!f) {
         avow_diag *d = ctx_error(ck->ctx, fa->span, "unknown factor `%s`", fa->level.s);
         if (ck->plan->nfactors) {
@@ -498,11 +883,20 @@ static int reduce_trend(checker *ck, const ast_expr *e, linval *out)
     avow_rat *x = avow_calloc(k, sizeof *x), *w = avow_calloc(k, sizeof *w), *c = avow_calloc(k, sizeof *c);
     int ok = x && w && c;
     if (!ok) ck->ctx->oom = 1;
+    /* Weights: the planned replicates behind each level's mean. With several factors a
+     * level's mean averages G cells, and its variance is sigma^2 sum(1/n_cell) / G^2, so
+     * it counts as G^2 / sum(1/n_cell) replicates (G n with n per cell). */
     size_t j = 0;
+    size_t G = ck->plan->ncells / f->nlevels;
     for (size_t i = 0; ok && i < f->nlevels; i++) {
         if (!f->levels[i].has_at) continue;
         x[j] = f->levels[i].at;
-        w[j] = ck->weights[i];
+        avow_rat inv = RAT_ZERO, t;
+        for (size_t cc = 0; cc < ck->plan->ncells; cc++)
+            if (plan_cell_level(ck->plan, cc, fidx) == i
+                && (rat_div(RAT_ONE, ck->weights[cc], &t) || rat_add(inv, t, &inv))) ok = 0;
+        if (ok && rat_div(rat_int((int64_t)(G * G)), inv, &w[j])) ok = 0;
+        if (!ok) { overflow_error(ck, e->span); break; }
         j++;
     }
     if (ok) {
@@ -518,7 +912,7 @@ static int reduce_trend(checker *ck, const ast_expr *e, linval *out)
     }
     for (size_t i = 0, jj = 0; ok && i < f->nlevels; i++) {
         if (!f->levels[i].has_at) continue;
-        out->c[i] = c[jj++];
+        ok = marginal_add(ck, out, fidx, i, c[jj++], e->span);
     }
     if (ok) out->levels = 1;
     avow_free(x); avow_free(w); avow_free(c);
@@ -535,11 +929,9 @@ static int reduce(checker *ck, const ast_expr *e, linval *out)
         return 1;
     }
     case EX_REF: {
-        long cell = resolve_level(ck, &e->factor, &e->level);
-        if (cell < 0) return 0;
-        out->c[cell] = RAT_ONE;
-        out->levels = 1;
-        return 1;
+        size_t f, l;
+        if (!resolve_ref(ck, &e->factor, &e->level, &f, &l)) return 0;
+        return marginal_add(ck, out, f, l, RAT_ONE, e->span);
     }
     case EX_NEG:
         if (!reduce(ck, e->lhs, out)) return 0;
@@ -581,9 +973,12 @@ static int reduce(checker *ck, const ast_expr *e, linval *out)
     case EX_CALL:
         if (name_eq(e->fn.s, e->fn.len, "mean")) return reduce_mean(ck, e, out);
         if (name_eq(e->fn.s, e->fn.len, "trend")) return reduce_trend(ck, e, out);
+        if (name_eq(e->fn.s, e->fn.len, "cell")) return reduce_cell(ck, e, out);
+        if (name_eq(e->fn.s, e->fn.len, "interaction")) return reduce_interaction(ck, e, out);
         {
             avow_diag *d = ctx_error(ck->ctx, e->fn.span, "unknown function `%s`", e->fn.s);
-            diag_hint(ck->ctx, d, "the functions are mean(LEVEL, ...) and trend(FACTOR, DEGREE)");
+            diag_hint(ck->ctx, d, "the functions are mean(LEVEL, ...), trend(FACTOR, DEGREE), cell(LEVEL, ...) "
+                                  "and interaction(CONTRAST, CONTRAST, ...)");
         }
         return 0;
     }
@@ -691,6 +1086,31 @@ static void check_contrast(checker *ck, const ast_stmt *s, plan_contrast *pc, in
         sum_hint(ck, d, pc->coef);
         return;
     }
+    if (ck->plan->interactions != INTER_ALL && ck->plan->nfactors > 1) {
+        /* Under a model without some interactions, a contrast must touch a term it keeps. */
+        int touches = 0;
+        for (size_t t = 0; t < ck->plan->nterms && !touches; t++) {
+            const plan_term *term = &ck->plan->terms[t];
+            for (size_t j = 0; j < term->df && !touches; j++) {
+                avow_rat dot = RAT_ZERO, x;
+                for (size_t c = 0; c < n; c++) {
+                    int code = plan_term_code(ck->plan, term, c, j);
+                    if (code && (rat_mul(pc->coef[c], rat_int(code), &x) || rat_add(dot, x, &dot))) {
+                        overflow_error(ck, s->expr->span);
+                        return;
+                    }
+                }
+                if (!rat_is_zero(dot)) touches = 1;
+            }
+        }
+        if (!touches) {
+            avow_diag *d = ctx_error(ck->ctx, s->expr->span,
+                                     "this contrast measures only interactions that the model leaves out");
+            diag_related(ck->ctx, d, ck->first[ST_INTERACTIONS]->span, "the model's interactions are set here");
+            diag_hint(ck->ctx, d, "keep the interaction in the model (interactions all), or drop the contrast");
+            return;
+        }
+    }
     pc->valid = 1;
 }
 
@@ -775,13 +1195,18 @@ static void check_orthogonality(checker *ck)
             }
         }
     }
-    size_t k = n, valid = 0;
+    size_t dfb = p->treat_df, valid = 0;
     for (size_t i = 0; i < m; i++) {
         if (!p->contrasts[i].valid) continue;
-        if (++valid == k) {
-            ctx_warning(ck->ctx, p->contrasts[i].span,
-                        "%zu planned contrasts but only %zu degree%s of freedom between the %zu levels",
-                        m, k - 1, k - 1 == 1 ? "" : "s", k);
+        if (++valid == dfb + 1) {
+            if (p->nfactors == 1)
+                ctx_warning(ck->ctx, p->contrasts[i].span,
+                            "%zu planned contrasts but only %zu degree%s of freedom between the %zu levels",
+                            m, dfb, dfb == 1 ? "" : "s", n);
+            else
+                ctx_warning(ck->ctx, p->contrasts[i].span,
+                            "%zu planned contrasts but only %zu degree%s of freedom among the treatments of the model",
+                            m, dfb, dfb == 1 ? "" : "s");
             break;
         }
     }
@@ -804,19 +1229,18 @@ static void check_data(checker *ck)
 {
     const ast_stmt *s = ck->first[ST_DATA];
     avow_plan *p = ck->plan;
-    size_t ncols = p->nfactors + 1;
+    size_t ncols = p->nfactors + (p->block ? 1 : 0) + 1;
     p->columns = arena_alloc(ck->ctx->arena, ncols * sizeof *p->columns);
     if (!p->columns) { ck->ctx->oom = 1; return; }
-    for (size_t i = 0; i < p->nfactors; i++) p->columns[i] = p->factors[i].name;
-    p->columns[p->nfactors] = p->response;
+    for (size_t i = 0; i < ncols; i++) p->columns[i] = plan_column_role(p, i);
     static const char *const default_missing[] = {"", "NA"};
     p->missing = (const char **)default_missing;
     p->nmissing = 2;
     if (s) check_data_block(ck, s, ncols);
     /* A level label that is also a missing-value token would be read as missing. */
-    for (size_t fi = 0; fi < p->nfactors; fi++)
-        for (size_t li = 0; li < p->factors[fi].nlevels; li++) {
-            const plan_level *l = &p->factors[fi].levels[li];
+    for (size_t fi = 0; fi < p->nfactors + (p->block ? 1 : 0); fi++)
+        for (size_t li = 0; li < (fi < p->nfactors ? p->factors[fi].nlevels : p->block->nlevels); li++) {
+            const plan_level *l = fi < p->nfactors ? &p->factors[fi].levels[li] : &p->block->levels[li];
             const char *label = l->code ? l->code : l->name;
             for (size_t m = 0; m < p->nmissing && label[0]; m++)
                 if (strcmp(label, p->missing[m]) == 0)
@@ -847,14 +1271,16 @@ static void check_data_block(checker *ck, const ast_stmt *s, size_t ncols)
         switch (it->kind) {
         case DI_FROM: {
             size_t col = ncols;
-            for (size_t i = 0; i + 1 < ncols; i++)
-                if (name_eq(it->name.s, it->name.len, p->factors[i].name)) col = i;
-            if (p->response && name_eq(it->name.s, it->name.len, p->response)) col = ncols - 1;
+            for (size_t i = 0; i < ncols; i++) {
+                const char *role = plan_column_role(p, i);
+                if (role && name_eq(it->name.s, it->name.len, role)) col = i;
+            }
             if (col == ncols) {
-                avow_diag *d = ctx_error(ck->ctx, it->name.span, "`%s` is neither a factor nor the response", it->name.s);
+                avow_diag *d = ctx_error(ck->ctx, it->name.span, "`%s` is neither a factor%s nor the response",
+                                         it->name.s, p->block ? ", the block" : "");
                 const char **cands = avow_calloc(ncols, sizeof *cands);
                 if (cands) {
-                    for (size_t i = 0; i < ncols; i++) cands[i] = i + 1 < ncols ? p->factors[i].name : p->response;
+                    for (size_t i = 0; i < ncols; i++) cands[i] = plan_column_role(p, i) ? plan_column_role(p, i) : "";
                     const char *c = closest(it->name.s, it->name.len, cands, ncols);
                     if (c) diag_hint(ck->ctx, d, "did you mean `%s`?", c);
                     avow_free(cands);
@@ -914,8 +1340,7 @@ static void check_data_block(checker *ck, const ast_stmt *s, size_t ncols)
             if (p->columns[i] && p->columns[j] && strcmp(p->columns[i], p->columns[j]) == 0) {
                 const ast_data_item *it = mapped[i] ? mapped[i] : mapped[j];
                 ctx_error(ck->ctx, it ? it->span : s->key, "column \"%s\" would hold both `%s` and `%s`",
-                          p->columns[i], j + 1 < ncols ? p->factors[j].name : p->response,
-                          i + 1 < ncols ? p->factors[i].name : p->response);
+                          p->columns[i], plan_column_role(p, j), plan_column_role(p, i));
             }
     avow_free(mapped);
 }
@@ -949,7 +1374,14 @@ static void check_settings(checker *ck)
     p->orthogonal = ck->first[ST_ORTHOGONAL] != NULL;
     s = ck->first[ST_VARIANCES];
     if (s) {
-        if (name_eq(s->name.s, s->name.len, "separate")) p->separate_variances = 1;
+        if (name_eq(s->name.s, s->name.len, "separate")) {
+            p->separate_variances = 1;
+            if (p->nfactors && !p->saturated) {
+                avow_diag *d = ctx_error(ck->ctx, s->span, "separate variances need a model with every interaction and no block");
+                diag_hint(ck->ctx, d, "each cell's own variance is its spread around its own mean, which %s",
+                          p->block ? "a block model does not estimate" : "a model without interactions does not fit");
+            }
+        }
         else if (!name_eq(s->name.s, s->name.len, "equal")) {
             avow_diag *d = ctx_error(ck->ctx, s->name.span, "`variances` is followed by `equal` or `separate`, not `%s`",
                                      s->name.s);
@@ -1004,6 +1436,11 @@ static void check_plan_block(checker *ck)
         }
         case PI_REPLICATES_EACH: {
             if (!n) break;
+            if (p->nfactors > 1) {
+                avow_diag *d = ctx_error(ck->ctx, it->span, "replicates per level apply to a study with one factor");
+                diag_hint(ck->ctx, d, "give one number of runs for every cell: replicates 4");
+                break;
+            }
             int64_t *reps = arena_alloc(ck->ctx->arena, n * sizeof *reps);
             const ast_rep **where = avow_calloc(n, sizeof *where);
             if (!reps || !where) { ck->ctx->oom = 1; avow_free(where); break; }
@@ -1085,33 +1522,120 @@ static void check_plan_block(checker *ck)
             if (total > ((int64_t)1 << 40)) break;
             ck->weights[i] = rat_int(p->replicates[i]);
         }
-        if (total <= (int64_t)n) {
+        int64_t nb = p->block ? (int64_t)p->block->nlevels : 1;
+        int64_t params = (int64_t)plan_model_params(p);
+        if (nb > 0 && params > 0 && total * nb <= params) {
             const ast_plan_item *it = seen[PI_REPLICATES];
-            avow_diag *d = ctx_error(ck->ctx, it->span,
-                                     "%lld runs for %zu levels leave no degrees of freedom for the residual",
-                                     (long long)total, n);
-            diag_hint(ck->ctx, d, "plan at least two runs for some level; replicates 2 is the smallest useful design");
+            avow_diag *d;
+            if (p->nfactors == 1 && !p->block)
+                d = ctx_error(ck->ctx, it->span,
+                              "%lld runs for %zu levels leave no degrees of freedom for the residual",
+                              (long long)total, n);
+            else
+                d = ctx_error(ck->ctx, it->span,
+                              "%lld runs for a model with %lld parameters leave no degrees of freedom for the residual",
+                              (long long)(total * nb), (long long)params);
+            diag_hint(ck->ctx, d, p->nfactors == 1 && !p->block
+                      ? "plan at least two runs for some level; replicates 2 is the smallest useful design"
+                      : "plan more runs per cell, or leave out interactions (interactions none)");
         }
     }
+}
+
+/* A treatment factor named in an explore statement; -1 after an error. */
+static long explore_factor(checker *ck, const ast_name *n)
+{
+    avow_plan *p = ck->plan;
+    for (size_t f = 0; f < p->nfactors; f++)
+        if (name_eq(n->s, n->len, p->factors[f].name)) return (long)f;
+    if (p->block && name_eq(n->s, n->len, p->block->name)) {
+        avow_diag *d = ctx_error(ck->ctx, n->span, "`%s` is the block; explorations compare treatments", n->s);
+        diag_hint(ck->ctx, d, "blocks are averaged out of every comparison");
+        return -1;
+    }
+    avow_diag *d = ctx_error(ck->ctx, n->span, "unknown factor `%s`", n->s);
+    const char **cands = avow_calloc(p->nfactors ? p->nfactors : 1, sizeof *cands);
+    if (!cands) { ck->ctx->oom = 1; return -1; }
+    for (size_t i = 0; i < p->nfactors; i++) cands[i] = p->factors[i].name;
+    const char *c = closest(n->s, n->len, cands, p->nfactors);
+    avow_free(cands);
+    if (c) diag_hint(ck->ctx, d, "did you mean `%s`?", c);
+    return -1;
+}
+
+/* Is the interaction of factors a and b (as a pair, or inside a higher term) in the model? */
+static int model_has_pair(const avow_plan *p, size_t a, size_t b)
+{
+    unsigned m = (1u << a) | (1u << b);
+    for (size_t t = 0; t < p->nterms; t++) if ((p->terms[t].mask & m) == m) return 1;
+    return 0;
 }
 
 static void check_explore(checker *ck, const ast_study *st)
 {
     avow_plan *p = ck->plan;
-    const ast_stmt *pairs = NULL, *versus = NULL;
+    size_t n = 0;
+    for (const ast_stmt *s = st->stmts; s; s = s->next)
+        if (s->kind == ST_EXPLORE_PAIRS || s->kind == ST_EXPLORE_VERSUS) n++;
+    if (!n || !p->nfactors) return;
+    p->explore_sets = arena_alloc(ck->ctx->arena, n * sizeof *p->explore_sets);
+    const ast_stmt **stmts = avow_calloc(n, sizeof *stmts);
+    if (!p->explore_sets || !stmts) { avow_free(stmts); ck->ctx->oom = 1; return; }
     for (const ast_stmt *s = st->stmts; s; s = s->next) {
-        if (s->kind == ST_EXPLORE_PAIRS) { pairs = s; p->explore_pairs = 1; }
-        if (s->kind != ST_EXPLORE_VERSUS) continue;
-        if (versus) {
-            avow_diag *d = ctx_error(ck->ctx, s->key, "`explore versus` is given twice");
-            diag_related(ck->ctx, d, versus->key, "first given here");
-            continue;
+        if (s->kind != ST_EXPLORE_PAIRS && s->kind != ST_EXPLORE_VERSUS) continue;
+        plan_explore e = {s->kind == ST_EXPLORE_PAIRS ? EXPLORE_PAIRS : EXPLORE_VERSUS, -1, -1, 0, s->span};
+        int ok = 1;
+        if (e.kind == EXPLORE_PAIRS) {
+            if (s->factor.len) ok = (e.factor = explore_factor(ck, &s->factor)) >= 0;
+            else if (p->nfactors == 1) e.factor = 0;
+        } else {
+            size_t f, l;
+            ok = resolve_ref(ck, &s->factor, &s->name, &f, &l);
+            if (ok) { e.factor = (long)f; e.control = l; }
         }
-        versus = s;
-        long cell = resolve_level(ck, &s->factor, &s->name);
-        if (cell >= 0) { p->has_versus = 1; p->versus_cell = (size_t)cell; }
+        if (s->within.len) {
+            long w = explore_factor(ck, &s->within);
+            if (w < 0) ok = 0;
+            else if (ok && w == e.factor) {
+                avow_diag *d = ctx_error(ck->ctx, s->within.span, "levels of `%s` cannot be compared within `%s` itself",
+                                         s->within.s, s->within.s);
+                diag_hint(ck->ctx, d, "name another factor after `within`");
+                ok = 0;
+            } else if (ok && e.factor < 0) {
+                ok = 0;
+            } else if (ok && !model_has_pair(p, (size_t)e.factor, (size_t)w)) {
+                avow_diag *d = ctx_error(ck->ctx, s->within.span,
+                                         "the model has no `%s` by `%s` interaction, so the comparisons are the same within every level of `%s`",
+                                         p->factors[e.factor].name, p->factors[w].name, p->factors[w].name);
+                diag_hint(ck->ctx, d, "compare the marginal means: explore %s %s",
+                          e.kind == EXPLORE_PAIRS ? "pairs" : "versus",
+                          e.kind == EXPLORE_PAIRS ? p->factors[e.factor].name : p->factors[e.factor].levels[e.control].name);
+                ok = 0;
+            }
+            e.within = w;
+        }
+        if (!ok) continue;
+        int dup = 0;
+        for (size_t i = 0; i < p->nexplore_sets && !dup; i++) {
+            const plan_explore *o = &p->explore_sets[i];
+            if (o->kind == e.kind && o->factor == e.factor && o->within == e.within
+                && (e.kind == EXPLORE_PAIRS || o->control == e.control)) {
+                avow_diag *d = ctx_error(ck->ctx, s->key, "the same exploration is requested twice");
+                diag_related(ck->ctx, d, stmts[i]->key, "first requested here");
+                dup = 1;
+            } else if (e.kind == EXPLORE_VERSUS && o->kind == EXPLORE_VERSUS && o->factor == e.factor
+                       && o->within == e.within) {
+                avow_diag *d = ctx_error(ck->ctx, s->key, "`explore versus` names two controls for `%s`",
+                                         p->factors[e.factor].name);
+                diag_related(ck->ctx, d, stmts[i]->key, "first given here");
+                dup = 1;
+            }
+        }
+        if (dup) continue;
+        stmts[p->nexplore_sets] = s;
+        p->explore_sets[p->nexplore_sets++] = e;
     }
-    (void)pairs;
+    avow_free(stmts);
 }
 
 /* The per-test levels each method implies for the planned family. */
@@ -1121,14 +1645,15 @@ static void check_family(checker *ck)
     size_t m = 0;
     for (size_t i = 0; i < p->ncontrasts; i++) m += p->contrasts[i].valid;
     p->family_m = m;
-    if (p->replicates)
-        for (size_t i = 0; i < p->ncells; i++) p->planned_runs += p->replicates[i];
+    int64_t nb = p->block ? (int64_t)p->block->nlevels : 1;
+    if (p->replicates && nb > 0)
+        for (size_t i = 0; i < p->ncells; i++) p->planned_runs += p->replicates[i] * nb;
     if (p->adjust == ADJ_SCHEFFE) {
-        int64_t k = (int64_t)p->ncells;
+        int64_t q = (int64_t)p->treat_df, params = (int64_t)plan_model_params(p);
         double f;
-        if (p->planned_runs > k && k > 1
-            && dist_f_qinv(rat_to_double(p->alpha), (double)(k - 1), (double)(p->planned_runs - k), &f) == 0)
-            p->scheffe_crit = sqrt((double)(k - 1) * f);
+        if (params > 0 && p->planned_runs > params && q > 0
+            && dist_f_qinv(rat_to_double(p->alpha), (double)q, (double)(p->planned_runs - params), &f) == 0)
+            p->scheffe_crit = sqrt((double)q * f);
         return;
     }
     if (!m) return;
@@ -1162,6 +1687,10 @@ size_t check_study(avow_ctx *ctx, const ast_study *study, avow_plan *plan)
     check_title(&ck);
     check_response(&ck);
     check_factors(&ck, study);
+    check_block(&ck, study);
+    check_interactions(&ck);
+    build_terms(&ck);
+    name_cells(&ck);
     check_settings(&ck);
     check_plan_block(&ck);
     check_data(&ck);

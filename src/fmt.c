@@ -318,6 +318,14 @@ static void put_stmt(fmt_state *fs, const ast_stmt *s)
         for (const ast_level *l = s->levels; l; l = l->next) put_level(fs, l);
         close_block(fs, s);
         return;
+    case ST_BLOCK:
+        sb_puts(o, "block "); put_name(&s->name, o); put_opt_string(s->str, o);
+        if (!s->has_block) break;
+        open_block(fs, s);
+        for (const ast_level *l = s->levels; l; l = l->next) put_level(fs, l);
+        close_block(fs, s);
+        return;
+    case ST_INTERACTIONS: sb_puts(o, "interactions "); sb_put(o, s->name.s, s->name.len); break;
     case ST_DATA:
         sb_puts(o, "data"); put_opt_string(s->str, o);
         if (!s->has_block) break;
@@ -331,11 +339,16 @@ static void put_stmt(fmt_state *fs, const ast_stmt *s)
     case ST_VARIANCES: sb_puts(o, "variances "); put_name(&s->name, o); break;
     case ST_COUNT: break;
     case ST_CONTRAST: case ST_EXPLORE_CONTRAST: put_contrast(fs, s); break;
-    case ST_EXPLORE_PAIRS: sb_puts(o, "explore pairs"); break;
+    case ST_EXPLORE_PAIRS:
+        sb_puts(o, "explore pairs");
+        if (s->factor.len) { sb_putc(o, ' '); put_name(&s->factor, o); }
+        if (s->within.len) { sb_puts(o, " within "); put_name(&s->within, o); }
+        break;
     case ST_EXPLORE_VERSUS:
         sb_puts(o, "explore versus ");
         if (s->factor.len) { put_name(&s->factor, o); sb_putc(o, '.'); }
         put_name(&s->name, o);
+        if (s->within.len) { sb_puts(o, " within "); put_name(&s->within, o); }
         break;
     case ST_PLAN:
         sb_puts(o, "plan");

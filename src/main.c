@@ -252,14 +252,13 @@ static int cmd_run(int argc, char **argv)
     eval_sha256_bytes(ctx.src, ctx.len, res.study_sha256);
     int rc = 0;
     strbuf errs = {0}, out = {0};
-    avow_acc *cells = NULL;
+    avow_data data;
+    memset(&data, 0, sizeof data);
     if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    cells = calloc(plan.ncells, sizeof *cells);
-    if (!cells) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    for (size_t i = 0; i < plan.ncells; i++) dec_acc_init(&cells[i]);
+    if (eval_data_init(&data, &plan) != AVOW_OK) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     /* The digest is computed on a second thread while the data are read. */
     eval_hash_job *job = eval_sha256_start(data_path);
-    size_t nerr = eval_read(&plan, data_path, data_path, cells, &res, &errs);
+    size_t nerr = eval_read(&plan, data_path, data_path, &data, &res, &errs);
     int hrc = eval_sha256_join(job, res.data_sha256);
     if (hrc != AVOW_OK) {
         if (hrc == AVOW_ENOMEM) fprintf(stderr, "avow: out of memory\n");
@@ -281,7 +280,7 @@ static int cmd_run(int argc, char **argv)
         rc = EXIT_DATA;
         goto done;
     }
-    int arc = eval_analyse(&plan, cells, &res, &errs);
+    int arc = eval_analyse(&plan, &data, &res, &errs);
     if (arc != AVOW_OK) {
         if (errs.len) {
             fprintf(stderr, "%s: error: ", data_path);
@@ -305,8 +304,7 @@ static int cmd_run(int argc, char **argv)
         write_stdout(&out);
     }
 done:
-    if (cells) for (size_t i = 0; i < plan.ncells; i++) dec_acc_clear(&cells[i]);
-    free(cells);
+    eval_data_free(&data);
     free(data_path);
     eval_results_free(&res);
     sb_free(&errs);

@@ -129,7 +129,7 @@ static int has(const int *set, int n, int t)
 
 static const int stmt_keywords[] = {TK_STUDY, TK_RESPONSE, TK_FACTOR, TK_DATA, TK_ALPHA,
                                     TK_ADJUST, TK_ORTHOGONAL, TK_CONTRAST, TK_EXPLORE, TK_PLAN,
-                                    TK_VARIANCES};
+                                    TK_VARIANCES, TK_BLOCK, TK_INTERACTIONS};
 static const int operators[] = {TK_PLUS, TK_MINUS, TK_STAR, TK_SLASH};
 static const int methods[] = {TK_NONE, TK_BONFERRONI, TK_HOLM, TK_SIDAK, TK_SCHEFFE, TK_FDR};
 
@@ -164,7 +164,7 @@ static void describe_found(const avow_token *t, strbuf *b)
 /* The phrase for a name or string in the context of the innermost block. */
 static const char *name_phrase(const parse_state *ps, const int *set, int n)
 {
-    if (ps->block == TK_FACTOR && has(set, n, TK_STRING) && has(set, n, TK_IDENT))
+    if ((ps->block == TK_FACTOR || ps->block == TK_BLOCK) && has(set, n, TK_STRING) && has(set, n, TK_IDENT))
         return has(set, n, TK_AT) ? NULL : "a level name";
     if (ps->block == TK_DATA && has(set, n, TK_IDENT) && has(set, n, TK_MISSING))
         return "a column mapping (`NAME from \"column\"`)";
@@ -206,8 +206,10 @@ void parse_syntax_error(parse_state *ps, const int *expected, int n)
         list[parts++] = "an operator";
         for (size_t i = 0; i < COUNT(operators); i++) used[operators[i]] = 1;
     }
-    /* The rest: names, strings and numbers first, then keywords, then punctuation. */
-    for (int rank = 0; rank < 3; rank++)
+    /* The rest: names, strings and numbers first, then keywords (alphabetically, so that
+     * messages do not depend on the grammar's token numbering), then punctuation. */
+    for (int rank = 0; rank < 3; rank++) {
+        int first = parts;
         for (int i = 0; i < n && parts < 60; i++) {
             int k = expected[i];
             if (k < 0 || k >= 256 || used[k]) continue;
@@ -217,6 +219,12 @@ void parse_syntax_error(parse_state *ps, const int *expected, int n)
             used[k] = 1;
             list[parts++] = lex_token_name(k);
         }
+        if (rank == 1)
+            for (int i = first + 1; i < parts; i++)     /* insertion sort: a handful of names */
+                for (int j = i; j > first && strcmp(list[j - 1], list[j]) > 0; j--) {
+                    const char *x = list[j]; list[j] = list[j - 1]; list[j - 1] = x;
+                }
+    }
     for (int i = 0; i < parts; i++) {
         if (i > 0) sb_puts(&want, i == parts - 1 ? " or " : ", ");
         sb_puts(&want, list[i]);
@@ -238,7 +246,7 @@ void parse_syntax_error(parse_state *ps, const int *expected, int n)
                       after.s ? after.s : "", found.s ? found.s : "a token");
     if (t->type == 0 && ps->block)
         diag_related(ctx, d, ps->block_open, "the block that is still open starts here");
-    else if (t->type == TK_STRING && ps->block == TK_FACTOR)
+    else if (t->type == TK_STRING && (ps->block == TK_FACTOR || ps->block == TK_BLOCK))
         diag_hint(ctx, d, "a string after a level is its description; each level has at most one");
     else if (t->type == TK_EQ && ps->stmt == TK_CONTRAST)
         diag_hint(ctx, d, "a contrast reads: contrast NAME = EXPRESSION");
@@ -259,6 +267,7 @@ static void track(parse_state *ps, const avow_token *t)
     switch (t->type) {
     case TK_STUDY: case TK_RESPONSE: case TK_FACTOR: case TK_DATA: case TK_ALPHA:
     case TK_ADJUST: case TK_ORTHOGONAL: case TK_CONTRAST: case TK_EXPLORE: case TK_PLAN: case TK_VARIANCES:
+    case TK_BLOCK: case TK_INTERACTIONS:
         if (!ps->block) ps->stmt = t->type;
         break;
     case TK_LBRACE:
@@ -299,13 +308,14 @@ int parse_study(avow_ctx *ctx, ast_study *out)
             switch (t.type) {
             case TK_STUDY: case TK_RESPONSE: case TK_FACTOR: case TK_DATA: case TK_ALPHA:
             case TK_ADJUST: case TK_ORTHOGONAL: case TK_EXPLORE: case TK_PLAN: case TK_VARIANCES:
+            case TK_BLOCK: case TK_INTERACTIONS:
                 ps.stmt_tokens = 0;
                 break;
             default: break;
             }
         }
         if (t.type == TK_CONTRAST && ps.prev.type != TK_EXPLORE) ps.stmt_tokens = 0;
-        if (++ps.stmt_tokens > AVOW_MAX_STMT_TOKENS && ps.stmt != TK_FACTOR && ps.stmt != TK_DATA
+        if (++ps.stmt_tokens > AVOW_MAX_STMT_TOKENS && ps.stmt != TK_FACTOR && ps.stmt != TK_BLOCK && ps.stmt != TK_DATA
             && ps.stmt != TK_PLAN) {
             ctx_error(ctx, t.span, "a statement of more than %d tokens", AVOW_MAX_STMT_TOKENS);
             rc = 1;

@@ -123,23 +123,50 @@ static uint64_t hash_bytes(const char *s, size_t n)
     return h;
 }
 
-static int map_init(label_map *m, const plan_factor *f)
+static int map_put(label_map *m, const char *lab, size_t n, size_t cell)
 {
-    size_t slots = 16;
-    while (slots < 2 * f->nlevels + 2) slots *= 2;
+    size_t h = (size_t)hash_bytes(lab, n) & m->mask;
+    while (m->label[h]) h = (h + 1) & m->mask;
+    m->label[h] = lab; m->len[h] = n; m->cell[h] = cell;
+    return 1;
+}
+
+static int map_alloc(label_map *m, size_t slots)
+{
     m->mask = slots - 1;
     m->label = avow_calloc(slots, sizeof *m->label);
     m->len = avow_calloc(slots, sizeof *m->len);
     m->cell = avow_calloc(slots, sizeof *m->cell);
-    if (!m->label || !m->len || !m->cell) return 0;
+    return m->label && m->len && m->cell;
+}
+
+static int map_init(label_map *m, const plan_factor *f)
+{
+    size_t slots = 16;
+    while (slots < 2 * f->nlevels + 2) slots *= 2;
+    if (!map_alloc(m, slots)) return 0;
     for (size_t i = 0; i < f->nlevels; i++) {
         const char *lab = f->levels[i].code ? f->levels[i].code : f->levels[i].name;
-        size_t n = strlen(lab);
-        size_t h = (size_t)hash_bytes(lab, n) & m->mask;
-        while (m->label[h]) h = (h + 1) & m->mask;
-        m->label[h] = lab; m->len[h] = n; m->cell[h] = i;
+        map_put(m, lab, strlen(lab), i);
     }
     return 1;
+}
+
+/* Add a label (kept by the caller) to a map that grows: at most half full. */
+static int map_add(label_map *m, const char *lab, size_t n, size_t cell, size_t count)
+{
+    if (2 * (count + 1) > m->mask + 1) {
+        label_map bigger = {0};
+        if (!map_alloc(&bigger, 2 * (m->mask + 1))) {
+            avow_free(bigger.label); avow_free(bigger.len); avow_free(bigger.cell);
+            return 0;
+        }
+        for (size_t i = 0; i <= m->mask; i++)
+            if (m->label[i]) map_put(&bigger, m->label[i], m->len[i], m->cell[i]);
+        avow_free(m->label); avow_free(m->len); avow_free(m->cell);
+        *m = bigger;
+    }
+    return map_put(m, lab, n, cell);
 }
 
 static long map_find(const label_map *m, const char *s, size_t n)
@@ -155,6 +182,38 @@ static long map_find(const label_map *m, const char *s, size_t n)
 static void map_free(label_map *m)
 {
     avow_free(m->label); avow_free(m->len); avow_free(m->cell);
+}
+
+/* ---- the data's cells ---- */
+
+static int data_grow(avow_data *d, size_t blocks)
+{
+    if (blocks <= d->cap) return AVOW_OK;
+    size_t cap = d->cap ? d->cap : 1;
+    while (cap < blocks) cap *= 2;
+    avow_acc *acc = avow_realloc(d->acc, cap * d->ncells * sizeof *acc);
+    if (!acc) return AVOW_ENOMEM;
+    d->acc = acc;
+    for (size_t i = d->cap * d->ncells; i < cap * d->ncells; i++) dec_acc_init(&acc[i]);
+    d->cap = cap;
+    return AVOW_OK;
+}
+
+int eval_data_init(avow_data *d, const avow_plan *plan)
+{
+    memset(d, 0, sizeof *d);
+    d->ncells = plan->ncells;
+    d->nblocks = plan->block ? plan->block->nlevels : 1;
+    return data_grow(d, d->nblocks ? d->nblocks : 1);
+}
+
+void eval_data_free(avow_data *d)
+{
+    for (size_t i = 0; i < d->cap * d->ncells; i++) dec_acc_clear(&d->acc[i]);
+    avow_free(d->acc);
+    if (d->block_labels) for (size_t b = 0; b < d->nblocks; b++) avow_free(d->block_labels[b]);
+    avow_free(d->block_labels);
+    memset(d, 0, sizeof *d);
 }
 
 /* ---- the pass ---- */
@@ -293,11 +352,33 @@ static long find_column(const csv_record *hdr, const char *name)
     return found;
 }
 
-size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_acc *cells,
+/* Report the header's columns when a needed one is missing. */
+static void missing_column(read_state *rs, const csv_record *rec, const char *name, const char *role)
+{
+    strbuf have = {0};
+    for (size_t c = 0; c < rec->nfields && c < 12; c++) {
+        if (c) sb_puts(&have, ", ");
+        put_field(&have, rec->fields[c].ptr, rec->fields[c].len);
+    }
+    if (rec->nfields > 12) sb_puts(&have, ", ...");
+    data_error(rs, rec->line, 1, "no column \"%s\" for `%s`; the header has %s", name, role,
+               have.s ? have.s : "no names");
+    sb_free(&have);
+    if (rec->nfields == 1 && rs->nerr == 1) {
+        const char *h = rec->fields[0].ptr;
+        size_t hl = rec->fields[0].len;
+        const char *d = memchr(h, '\t', hl) ? "\\t" : memchr(h, ';', hl) ? ";" : memchr(h, ',', hl) ? "," : NULL;
+        if (d) sb_printf(rs->errs, "  hint: the header is one field; add delimiter \"%s\" to the data block\n", d);
+    }
+}
+
+size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_data *data,
                  avow_results *res, strbuf *errs)
 {
     read_state rs = {plan, shown, errs, 0};
-    const plan_factor *f = &plan->factors[0];
+    size_t nf = plan->nfactors, has_block = plan->block ? 1 : 0;
+    size_t ncols_study = nf + has_block + 1;   /* factors, block, response */
+    size_t bcol_i = nf, ycol_i = nf + has_block;
     res->delimiter = pick_delimiter(plan, path);
     int fd = open(path, O_RDONLY);
     if (fd < 0) {
@@ -305,11 +386,21 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         return 1;
     }
     csv_reader *r = NULL;
-    label_map map = {0};
+    label_map maps[AVOW_MAX_FACTORS + 1];
+    memset(maps, 0, sizeof maps);
     missing_set miss = {0};
-    if (csv_open_fd(fd, res->delimiter, &r) != AVOW_OK || !map_init(&map, f) || !missing_init(&miss, plan)) {
+    long cols[AVOW_MAX_FACTORS + 2];
+    int ok_init = csv_open_fd(fd, res->delimiter, &r) == AVOW_OK && missing_init(&miss, plan);
+    for (size_t f = 0; ok_init && f < nf; f++) ok_init = map_init(&maps[f], &plan->factors[f]);
+    if (ok_init && has_block) {
+        if (plan->block_from_data) ok_init = map_alloc(&maps[nf], 16);
+        else ok_init = map_init(&maps[nf], plan->block);
+    }
+    if (!ok_init) {
         sb_printf(errs, "%s: error: out of memory\n", shown);
-        csv_close(r); map_free(&map); avow_free(miss.len); close(fd);
+        csv_close(r);
+        for (size_t f = 0; f <= nf; f++) map_free(&maps[f]);
+        avow_free(miss.len); close(fd);
         return 1;
     }
     csv_record rec;
@@ -321,35 +412,17 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         goto done;
     }
     size_t ncols = rec.nfields;
-    long fcol = find_column(&rec, plan->columns[0]);
-    long ycol = find_column(&rec, plan->columns[plan->nfactors]);
-    const char *names[2] = {plan->columns[0], plan->columns[plan->nfactors]};
-    long cols[2] = {fcol, ycol};
-    const char *roles[2] = {f->name, plan->response};
-    for (int i = 0; i < 2; i++) {
+    for (size_t i = 0; i < ncols_study; i++) {
+        cols[i] = find_column(&rec, plan->columns[i]);
+        const char *role = plan_column_role(plan, i);
+        const char *what = i == ycol_i ? "response" : i == bcol_i && has_block ? "block" : "factor";
         if (cols[i] == -2)
-            data_error(&rs, rec.line, 1, "the header has two columns named \"%s\" (the %s)", names[i],
-                       i == 0 ? "factor" : "response");
-        else if (cols[i] < 0) {
-            strbuf have = {0};
-            for (size_t c = 0; c < rec.nfields && c < 12; c++) {
-                if (c) sb_puts(&have, ", ");
-                put_field(&have, rec.fields[c].ptr, rec.fields[c].len);
-            }
-            if (rec.nfields > 12) sb_puts(&have, ", ...");
-            data_error(&rs, rec.line, 1, "no column \"%s\" for `%s`; the header has %s", names[i], roles[i],
-                       have.s ? have.s : "no names");
-            sb_free(&have);
-            if (rec.nfields == 1) {
-                const char *h = rec.fields[0].ptr;
-                size_t hl = rec.fields[0].len;
-                const char *d = memchr(h, '\t', hl) ? "\\t" : memchr(h, ';', hl) ? ";" : memchr(h, ',', hl) ? "," : NULL;
-                if (d) sb_printf(errs, "  hint: the header is one field; add delimiter \"%s\" to the data block\n", d);
-            }
-            break;
-        }
+            data_error(&rs, rec.line, 1, "the header has two columns named \"%s\" (the %s)", plan->columns[i], what);
+        else if (cols[i] < 0)
+            missing_column(&rs, &rec, plan->columns[i], role);
     }
     if (rs.nerr) goto done;
+    size_t ycol = (size_t)cols[ycol_i];
     for (;;) {
         int got = csv_next(r, &rec);
         if (got == 0) break;
@@ -372,8 +445,12 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
                        rec.nfields == 1 ? "" : "s", ncols);
             continue;
         }
-        const csv_field *lf = &rec.fields[fcol], *yf = &rec.fields[ycol];
-        int miss_level = is_missing(&miss, lf->ptr, lf->len);
+        const csv_field *yf = &rec.fields[ycol];
+        int miss_level = 0;
+        for (size_t i = 0; i < nf + has_block && !miss_level; i++) {
+            const csv_field *lf = &rec.fields[cols[i]];
+            miss_level = is_missing(&miss, lf->ptr, lf->len);
+        }
         int miss_y = is_missing(&miss, yf->ptr, yf->len);
         if (miss_level || miss_y) {
             if (miss_y) res->missing_response++;
@@ -381,22 +458,70 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             if (res->nmissing_lines < AVOW_MAX_LISTED_MISSING) res->missing_lines[res->nmissing_lines++] = rec.line;
             continue;
         }
-        long cell = map_find(&map, lf->ptr, lf->len);
-        if (cell < 0) {
-            strbuf b = {0};
-            put_field(&b, lf->ptr, lf->len);
-            data_error(&rs, rec.line, (size_t)fcol + 1, "%s is not a level of `%s`", b.s ? b.s : "?", f->name);
-            sb_free(&b);
-            if (rs.nerr <= AVOW_MAX_DATA_ERRORS) label_hint(f, lf->ptr, lf->len, errs);
-            continue;
+        size_t cell = 0;
+        int bad = 0;
+        for (size_t f = 0; f < nf; f++) {
+            const csv_field *lf = &rec.fields[cols[f]];
+            long l = map_find(&maps[f], lf->ptr, lf->len);
+            if (l < 0) {
+                strbuf b = {0};
+                put_field(&b, lf->ptr, lf->len);
+                data_error(&rs, rec.line, (size_t)cols[f] + 1, "%s is not a level of `%s`", b.s ? b.s : "?",
+                           plan->factors[f].name);
+                sb_free(&b);
+                if (rs.nerr <= AVOW_MAX_DATA_ERRORS) label_hint(&plan->factors[f], lf->ptr, lf->len, errs);
+                bad = 1;
+                break;
+            }
+            cell = cell * plan->factors[f].nlevels + (size_t)l;
         }
+        if (bad) continue;
+        size_t block = 0;
+        if (has_block) {
+            const csv_field *bf = &rec.fields[cols[bcol_i]];
+            long b = map_find(&maps[nf], bf->ptr, bf->len);
+            if (b < 0 && plan->block_from_data) {
+                if (data->nblocks >= AVOW_MAX_BLOCKS) {
+                    data_error(&rs, rec.line, (size_t)cols[bcol_i] + 1, "more than %d blocks in `%s`",
+                               AVOW_MAX_BLOCKS, plan->block->name);
+                    break;
+                }
+                char **labels = avow_realloc(data->block_labels, (data->nblocks + 1) * sizeof *labels);
+                char *lab = avow_malloc(bf->len + 1);
+                if (labels) data->block_labels = labels;
+                if (!labels || !lab || data_grow(data, data->nblocks + 1) != AVOW_OK) {
+                    avow_free(lab);
+                    data_error(&rs, 0, 0, "out of memory");
+                    break;
+                }
+                memcpy(lab, bf->ptr, bf->len);
+                lab[bf->len] = 0;
+                data->block_labels[data->nblocks] = lab;
+                if (!map_add(&maps[nf], lab, bf->len, data->nblocks, data->nblocks)) {
+                    data->nblocks++;
+                    data_error(&rs, 0, 0, "out of memory");
+                    break;
+                }
+                b = (long)data->nblocks++;
+            } else if (b < 0) {
+                strbuf bb = {0};
+                put_field(&bb, bf->ptr, bf->len);
+                data_error(&rs, rec.line, (size_t)cols[bcol_i] + 1, "%s is not a level of the block `%s`",
+                           bb.s ? bb.s : "?", plan->block->name);
+                sb_free(&bb);
+                if (rs.nerr <= AVOW_MAX_DATA_ERRORS) label_hint(plan->block, bf->ptr, bf->len, errs);
+                continue;
+            }
+            block = (size_t)b;
+        }
+        avow_acc *acc = &data->acc[block * data->ncells + cell];
         avow_dec v;
         int pr = dec_parse(yf->ptr, yf->len, &v);
         if (pr == AVOW_OK) {
-            if (dec_acc_add(&cells[cell], v) != AVOW_OK) {
+            if (dec_acc_add(acc, v) != AVOW_OK) {
                 strbuf b = {0};
                 put_field(&b, yf->ptr, yf->len);
-                data_error(&rs, rec.line, (size_t)ycol + 1, "the value %s is too far from the others to be analysed",
+                data_error(&rs, rec.line, ycol + 1, "the value %s is too far from the others to be analysed",
                            b.s ? b.s : "?");
                 sb_free(&b);
                 continue;
@@ -409,10 +534,10 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             tmp[n] = 0;
             char *end;
             double d = strtod(tmp, &end);
-            if (n != yf->len || *end || dec_acc_add_double(&cells[cell], d) != AVOW_OK) {
+            if (n != yf->len || *end || dec_acc_add_double(acc, d) != AVOW_OK) {
                 strbuf b = {0};
                 put_field(&b, yf->ptr, yf->len);
-                data_error(&rs, rec.line, (size_t)ycol + 1, "the value %s is out of range", b.s ? b.s : "?");
+                data_error(&rs, rec.line, ycol + 1, "the value %s is out of range", b.s ? b.s : "?");
                 sb_free(&b);
                 continue;
             }
@@ -425,7 +550,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             for (size_t i = 0; i < yf->len && i < 7; i++)
                 low[i] = (char)(yf->ptr[i] >= 'A' && yf->ptr[i] <= 'Z' ? yf->ptr[i] + 32 : yf->ptr[i]);
             if (strstr(low, "inf") || strstr(low, "nan")) why = "is not a finite number";
-            data_error(&rs, rec.line, (size_t)ycol + 1, "the %s value %s %s", plan->response, b.s ? b.s : "?", why);
+            data_error(&rs, rec.line, ycol + 1, "the %s value %s %s", plan->response, b.s ? b.s : "?", why);
             sb_free(&b);
             if (rs.nerr <= AVOW_MAX_DATA_ERRORS && memchr(yf->ptr, ',', yf->len) && !memchr(yf->ptr, '.', yf->len))
                 sb_puts(errs, "  hint: write decimals with a point: 11.0, not 11,0\n");
@@ -433,23 +558,30 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         }
         res->used++;
     }
-    if (!rs.nerr) {
+    if (!rs.nerr && plan->saturated) {
+        /* The cell-means model needs every cell; a model without some interactions, or with
+         * blocks, may do without some (the analysis checks that every term is estimable). */
         uint64_t N = 0;
         for (size_t i = 0; i < plan->ncells; i++) {
-            uint64_t n = dec_acc_n(&cells[i]);
+            uint64_t n = dec_acc_n(&data->acc[i]);
             N += n;
             if (n == 0)
-                data_error(&rs, 0, 0, "level `%s` has no data", plan_cell_name(plan, i));
+                data_error(&rs, 0, 0, "%s `%s` has no data", plan->nfactors == 1 ? "level" : "cell",
+                           plan_cell_name(plan, i));
         }
-        if (!rs.nerr && N <= plan->ncells)
+        /* (with several factors the analysis counts the residual's degrees of freedom) */
+        if (!rs.nerr && plan->nfactors == 1 && N <= plan->ncells)
             data_error(&rs, 0, 0, "%llu observations for %zu levels leave no degrees of freedom for the residual",
                        (unsigned long long)N, plan->ncells);
     }
+    if (!rs.nerr && has_block && data->nblocks < 2)
+        data_error(&rs, 0, 0, "the data hold %zu block%s of `%s`; blocks need at least two",
+                   data->nblocks, data->nblocks == 1 ? "" : "s", plan->block->name);
 done:
     if (rs.nerr > AVOW_MAX_DATA_ERRORS)
         sb_printf(errs, "%s: error: %zu more errors not shown\n", shown, rs.nerr - AVOW_MAX_DATA_ERRORS);
     csv_close(r);
-    map_free(&map);
+    for (size_t f = 0; f <= nf && f <= AVOW_MAX_FACTORS; f++) map_free(&maps[f]);
     avow_free(miss.len);
     close(fd);
     return rs.nerr;

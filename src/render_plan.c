@@ -124,8 +124,13 @@ static void family_text(const avow_plan *p, strbuf *o)
                    "   Controls the expected share of false findings among the findings (false discovery rate).\n");
         break;
     case ADJ_SCHEFFE:
-        sb_puts(o, "   A contrast is declared a difference when |t| exceeds sqrt((k - 1) * F), with F the upper\n"
-                   "   alpha point of the F distribution on k - 1 and N - k degrees of freedom");
+        if (p->nfactors == 1 && !p->block)
+            sb_puts(o, "   A contrast is declared a difference when |t| exceeds sqrt((k - 1) * F), with F the upper\n"
+                       "   alpha point of the F distribution on k - 1 and N - k degrees of freedom");
+        else
+            sb_printf(o, "   A contrast is declared a difference when |t| exceeds sqrt(q * F), with q = %zu the\n"
+                         "   treatment degrees of freedom of the model and F the upper alpha point of the F\n"
+                         "   distribution on q and the residual degrees of freedom", p->treat_df);
         if (p->scheffe_crit > 0)
             sb_printf(o, ";\n   with the %lld planned runs that is |t| > %.4f", (long long)p->planned_runs,
                       p->scheffe_crit);
@@ -156,9 +161,9 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
     if (p->has_data) {
         strbuf d = {0};
         sb_printf(&d, "%s; columns", p->data_path);
-        for (size_t i = 0; i <= p->nfactors; i++)
-            sb_printf(&d, "%s \"%s\" for %s", i ? "," : "", p->columns[i],
-                      i < p->nfactors ? p->factors[i].name : p->response);
+        size_t ncols = p->nfactors + (p->block ? 1 : 0) + 1;
+        for (size_t i = 0; i < ncols; i++)
+            sb_printf(&d, "%s \"%s\" for %s", i ? "," : "", p->columns[i], plan_column_role(p, i));
         sb_puts(&d, "; missing");
         for (size_t i = 0; i < p->nmissing; i++) sb_printf(&d, " \"%s\"", p->missing[i]);
         sb_printf(&d, "; %s", p->sha256 ? "locked by sha256" : "not locked");
@@ -187,26 +192,84 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
             table_cell(&t, 0, "%s", l->name);
             table_cell(&t, 1, "%s", l->has_at ? l->at_text : "-");
             table_cell(&t, 2, "%s", l->code ? l->code : l->name);
-            if (p->replicates) table_cell(&t, 3, "%lld", (long long)p->replicates[i]);
+            if (p->replicates && p->nfactors == 1) table_cell(&t, 3, "%lld", (long long)p->replicates[i]);
+            else if (p->replicates) table_cell(&t, 3, "%lld", (long long)(p->replicates[0] * (int64_t)(p->ncells / f->nlevels)));
             else table_cell(&t, 3, "-");
             table_cell(&t, 4, "%s", l->desc ? l->desc : "");
         }
         table_render(&t, 3, o);
         table_free(&t);
     }
+    if (p->block) {
+        const plan_factor *f = p->block;
+        strbuf h = {0};
+        if (p->block_from_data)
+            sb_printf(&h, "Block %s%s%s%s: levels taken from the data", f->name, f->label ? " \"" : "",
+                      f->label ? f->label : "", f->label ? "\"" : "");
+        else
+            sb_printf(&h, "Block %s%s%s%s: %zu levels", f->name, f->label ? " \"" : "",
+                      f->label ? f->label : "", f->label ? "\"" : "", f->nlevels);
+        heading(o, h.s ? h.s : "Block");
+        sb_free(&h);
+        if (!p->block_from_data) {
+            table_init(&t, 3, "lll");
+            table_row(&t);
+            table_cell(&t, 0, "level"); table_cell(&t, 1, "label in data"); table_cell(&t, 2, "description");
+            for (size_t i = 0; i < f->nlevels; i++) {
+                const plan_level *l = &f->levels[i];
+                table_row(&t);
+                table_cell(&t, 0, "%s", l->name);
+                table_cell(&t, 1, "%s", l->code ? l->code : l->name);
+                table_cell(&t, 2, "%s", l->desc ? l->desc : "");
+            }
+            table_render(&t, 3, o);
+            table_free(&t);
+        }
+        sb_puts(o, "   Blocks are additive: they shift every treatment alike and are averaged out of every\n"
+                   "   comparison.\n");
+    }
+    if (p->nfactors > 1 || p->block) {
+        heading(o, "Model");
+        table_init(&t, 3, "lrl");
+        table_row(&t);
+        table_cell(&t, 0, "term"); table_cell(&t, 1, "df"); table_cell(&t, 2, "%s", "");
+        for (size_t i = 0; i < p->nterms; i++) {
+            table_row(&t);
+            table_cell(&t, 0, "%s", p->terms[i].name);
+            table_cell(&t, 1, "%zu", p->terms[i].df);
+            table_cell(&t, 2, "%s", p->terms[i].order == 1 ? "main effect" : "interaction");
+        }
+        if (p->block) {
+            table_row(&t);
+            table_cell(&t, 0, "%s", p->block->name);
+            if (p->block_from_data) table_cell(&t, 1, "-");
+            else table_cell(&t, 1, "%zu", p->block->nlevels - 1);
+            table_cell(&t, 2, "block");
+        }
+        table_render(&t, 3, o);
+        table_free(&t);
+        sb_printf(o, "   %zu treatment cell%s", p->ncells, p->ncells == 1 ? "" : "s");
+        if (p->nfactors > 1)
+            sb_printf(o, " (%s)", p->interactions == INTER_ALL ? "every interaction kept"
+                                  : p->interactions == INTER_PAIRS ? "two-factor interactions kept"
+                                  : "no interaction: an additive model");
+        sb_puts(o, "; each term is tested adjusted for all the others.\n");
+    }
 
-    size_t df = p->ncells ? p->ncells - 1 : 0;
+    size_t df = p->treat_df;
     strbuf h = {0};
-    sb_printf(&h, "Planned contrasts: %zu, with %zu degree%s of freedom between levels", p->ncontrasts, df,
-              df == 1 ? "" : "s");
+    sb_printf(&h, "Planned contrasts: %zu, with %zu degree%s of freedom %s", p->ncontrasts, df,
+              df == 1 ? "" : "s", p->nfactors == 1 ? "between levels" : "among the treatments");
     heading(o, h.s ? h.s : "Planned contrasts");
     sb_free(&h);
     if (p->ncontrasts) contrast_table(p, p->contrasts, p->ncontrasts, o);
     else sb_puts(o, "   none declared: the run will report the ANOVA table only\n");
 
     if (p->ncontrasts > 1 && p->ortho) {
-        heading(o, p->replicates ? "Orthogonality: sum of c*d/n over levels, planned replicates"
-                                 : "Orthogonality: sum of c*d/n over levels, equal replicates");
+        heading(o, p->replicates ? (p->nfactors == 1 ? "Orthogonality: sum of c*d/n over levels, planned replicates"
+                                                     : "Orthogonality: sum of c*d/n over cells, planned replicates")
+                                 : (p->nfactors == 1 ? "Orthogonality: sum of c*d/n over levels, equal replicates"
+                                                     : "Orthogonality: sum of c*d/n over cells, equal replicates"));
         size_t m = p->ncontrasts;
         if (m + 1 <= 64) {
             char align[65];
@@ -234,15 +297,26 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
         }
     }
 
-    if (p->explore_pairs || p->has_versus || p->nexplores) {
+    if (p->nexplore_sets || p->nexplores) {
         heading(o, "Exploratory comparisons (reported apart from the planned family, always adjusted)");
-        size_t k = p->ncells;
-        if (p->explore_pairs)
-            sb_printf(o, "   every pair of levels: %zu comparison%s, %s\n", k * (k - 1) / 2, k == 2 ? "" : "s",
-                      p->separate_variances ? "Games-Howell (each level's own variance)" : "Tukey-Kramer");
-        if (p->has_versus)
-            sb_printf(o, "   every level against %s: %zu comparison%s, Dunnett\n",
-                      plan_cell_name(p, p->versus_cell), k - 1, k == 2 ? "" : "s");
+        for (size_t i = 0; i < p->nexplore_sets; i++) {
+            const plan_explore *e = &p->explore_sets[i];
+            size_t k = e->factor < 0 ? p->ncells : p->factors[e->factor].nlevels;
+            size_t slices = e->within >= 0 ? p->factors[e->within].nlevels : 1;
+            const char *what = e->factor < 0 ? "cell" : "level";
+            strbuf of = {0};
+            if (e->factor >= 0 && p->nfactors > 1) sb_printf(&of, " of %s", p->factors[e->factor].name);
+            if (e->within >= 0) sb_printf(&of, " within each level of %s", p->factors[e->within].name);
+            if (e->kind == EXPLORE_PAIRS)
+                sb_printf(o, "   every pair of %ss%s: %zu comparison%s, %s\n", what, of.s ? of.s : "",
+                          slices * k * (k - 1) / 2, slices * k * (k - 1) / 2 == 1 ? "" : "s",
+                          p->separate_variances ? "Games-Howell (each cell's own variance)" : "Tukey-Kramer");
+            else
+                sb_printf(o, "   every %s%s against %s: %zu comparison%s, Dunnett\n", what, of.s ? of.s : "",
+                          p->factors[e->factor].levels[e->control].name, slices * (k - 1),
+                          slices * (k - 1) == 1 ? "" : "s");
+            sb_free(&of);
+        }
         if (p->nexplores) {
             sb_printf(o, "   %zu contrast%s chosen after seeing data, Scheffe:\n\n", p->nexplores,
                       p->nexplores == 1 ? "" : "s");
@@ -260,9 +334,15 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
             int equal = 1;
             for (size_t i = 1; i < p->ncells; i++) equal &= p->replicates[i] == p->replicates[0];
             table_row(&t); table_cell(&t, 0, "replicates");
-            if (equal && p->ncells)
-                table_cell(&t, 1, "%lld per level, %lld runs", (long long)p->replicates[0],
+            if (equal && p->ncells && p->block && p->block_from_data)
+                table_cell(&t, 1, "%lld per cell in each block (blocks taken from the data)",
+                           (long long)p->replicates[0]);
+            else if (equal && p->ncells && p->block)
+                table_cell(&t, 1, "%lld per cell in each block, %lld runs", (long long)p->replicates[0],
                            (long long)p->planned_runs);
+            else if (equal && p->ncells)
+                table_cell(&t, 1, "%lld per %s, %lld runs", (long long)p->replicates[0],
+                           p->nfactors == 1 ? "level" : "cell", (long long)p->planned_runs);
             else table_cell(&t, 1, "as listed above, %lld runs", (long long)p->planned_runs);
         }
         if (p->has_sigma) { table_row(&t); table_cell(&t, 0, "sigma"); table_cell(&t, 1, "%s", p->sigma_text); }
@@ -394,10 +474,11 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o
         sb_printf(o, ", \"levels\": %zu}", p->factors[fi].nlevels);
     }
     sb_puts(o, "],\n  \"levels\": [");
+    size_t nl = 0;
     for (size_t fi = 0; fi < p->nfactors; fi++)
         for (size_t i = 0; i < p->factors[fi].nlevels; i++) {
             const plan_level *l = &p->factors[fi].levels[i];
-            sb_puts(o, i ? ",\n    {" : "\n    {");
+            sb_puts(o, nl++ ? ",\n    {" : "\n    {");
             sb_puts(o, "\"factor\": "); json_string(o, p->factors[fi].name);
             sb_puts(o, ", \"level\": "); json_string(o, l->name);
             sb_puts(o, ", \"code\": "); json_string(o, l->code);
@@ -406,17 +487,44 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o
             sb_puts(o, ", \"at_exact\": ");
             if (l->has_at) json_rat_str(o, l->at); else sb_puts(o, "null");
             sb_puts(o, ", \"planned_n\": ");
-            if (p->replicates) sb_printf(o, "%lld", (long long)p->replicates[i]); else sb_puts(o, "null");
+            if (p->replicates && p->nfactors == 1) sb_printf(o, "%lld", (long long)p->replicates[i]);
+            else sb_puts(o, "null");
             sb_puts(o, ", \"description\": "); json_string(o, l->desc);
             sb_putc(o, '}');
         }
-    sb_puts(o, "\n  ],\n  \"data\": ");
+    sb_puts(o, "\n  ],\n  \"block\": ");
+    if (p->block) {
+        sb_puts(o, "{\"name\": "); json_string(o, p->block->name);
+        sb_puts(o, ", \"label\": "); json_string(o, p->block->label);
+        sb_puts(o, ", \"levels\": ");
+        if (p->block_from_data) sb_puts(o, "null");
+        else {
+            sb_putc(o, '[');
+            for (size_t i = 0; i < p->block->nlevels; i++) {
+                if (i) sb_puts(o, ", ");
+                json_string(o, p->block->levels[i].name);
+            }
+            sb_putc(o, ']');
+        }
+        sb_putc(o, '}');
+    } else {
+        sb_puts(o, "null");
+    }
+    static const char *const inter[] = {"all", "none", "pairs"};
+    sb_printf(o, ",\n  \"model\": {\"cells\": %zu, \"interactions\": \"%s\", \"treatment_df\": %zu, \"terms\": [",
+              p->ncells, inter[p->interactions], p->treat_df);
+    for (size_t i = 0; i < p->nterms; i++) {
+        sb_puts(o, i ? ", {\"name\": " : "{\"name\": ");
+        json_string(o, p->terms[i].name);
+        sb_printf(o, ", \"df\": %zu}", p->terms[i].df);
+    }
+    sb_puts(o, "]},\n  \"data\": ");
     if (p->has_data) {
         sb_puts(o, "{\"path\": "); json_string(o, p->data_path);
         sb_puts(o, ", \"columns\": {");
-        for (size_t i = 0; i <= p->nfactors; i++) {
+        for (size_t i = 0; i < p->nfactors + (p->block ? 1 : 0) + 1; i++) {
             if (i) sb_puts(o, ", ");
-            json_string(o, i < p->nfactors ? p->factors[i].name : p->response);
+            json_string(o, plan_column_role(p, i));
             sb_puts(o, ": ");
             json_string(o, p->columns[i]);
         }
@@ -450,16 +558,23 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o
     sb_puts(o, m ? "]},\n" : "]},\n");
     sb_puts(o, "  \"explore\": [");
     int first = 1;
-    size_t k = p->ncells;
-    if (p->explore_pairs) {
-        sb_printf(o, "\n    {\"method\": \"%s\", \"comparisons\": %zu}", p->separate_variances ? "games-howell" : "tukey-kramer", k * (k - 1) / 2);
+    for (size_t i = 0; i < p->nexplore_sets; i++) {
+        const plan_explore *e = &p->explore_sets[i];
+        size_t k = e->factor < 0 ? p->ncells : p->factors[e->factor].nlevels;
+        size_t slices = e->within >= 0 ? p->factors[e->within].nlevels : 1;
+        sb_puts(o, first ? "\n    {" : ",\n    {");
         first = 0;
-    }
-    if (p->has_versus) {
-        sb_printf(o, "%s\n    {\"method\": \"dunnett\", \"control\": ", first ? "" : ",");
-        json_string(o, plan_cell_name(p, p->versus_cell));
-        sb_printf(o, ", \"comparisons\": %zu}", k - 1);
-        first = 0;
+        if (e->kind == EXPLORE_PAIRS)
+            sb_printf(o, "\"method\": \"%s\"", p->separate_variances ? "games-howell" : "tukey-kramer");
+        else {
+            sb_puts(o, "\"method\": \"dunnett\", \"control\": ");
+            json_string(o, p->factors[e->factor].levels[e->control].name);
+        }
+        sb_puts(o, ", \"factor\": ");
+        json_string(o, e->factor >= 0 ? p->factors[e->factor].name : NULL);
+        sb_puts(o, ", \"within\": ");
+        json_string(o, e->within >= 0 ? p->factors[e->within].name : NULL);
+        sb_printf(o, ", \"comparisons\": %zu}", slices * (e->kind == EXPLORE_PAIRS ? k * (k - 1) / 2 : k - 1));
     }
     if (p->nexplores) {
         sb_printf(o, "%s\n    {\"method\": \"scheffe\", \"contrasts\": ", first ? "" : ",");

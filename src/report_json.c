@@ -57,11 +57,17 @@ static void contrast_json(strbuf *o, const avow_plan *p, const avow_contrast_res
     sb_putc(o, '}');
 }
 
-static void pairs_json(strbuf *o, const avow_plan *p, const avow_pair_result *rs, size_t n)
+static const char *mean_name(const avow_plan *p, const plan_explore *e, size_t i)
+{
+    if (e->factor < 0) return plan_cell_name(p, i);
+    return p->factors[e->factor].levels[i].name;
+}
+
+static void pairs_json(strbuf *o, const avow_plan *p, const plan_explore *e, const avow_pair_result *rs, size_t n)
 {
     for (size_t i = 0; i < n; i++) {
         const avow_pair_result *r = &rs[i];
-        const char *a = plan_cell_name(p, r->a), *b = plan_cell_name(p, r->b);
+        const char *a = mean_name(p, e, r->a), *b = mean_name(p, e, r->b);
         strbuf name = {0};
         sb_printf(&name, "%s - %s", a, b);
         sb_puts(o, i ? ",\n      {" : "\n      {");
@@ -110,25 +116,79 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     sb_puts(o, "},\n  \"alpha\": "); num17(o, rat_to_double(p->alpha));
     sb_puts(o, ", \"adjust\": "); json_string(o, mult_name(p->adjust));
     sb_puts(o, ",\n  \"levels\": [");
+    if (p->nfactors == 1) {
+        for (size_t i = 0; i < r->ncells; i++) {
+            const avow_level_result *L = &r->levels[i];
+            sb_puts(o, i ? ",\n    {" : "\n    {");
+            key(o, "factor"); json_string(o, p->factors[0].name);
+            sb_puts(o, ", "); key(o, "level"); json_string(o, plan_cell_name(p, i));
+            sb_printf(o, ", \"n\": %llu, ", (unsigned long long)L->n);
+            key(o, "mean"); num17(o, L->mean);
+            sb_puts(o, ", "); key(o, "sd"); num17(o, L->sd);
+            sb_puts(o, ", "); key(o, "min"); num17(o, L->min);
+            sb_puts(o, ", "); key(o, "max"); num17(o, L->max);
+            sb_puts(o, ", "); key(o, "min_exact"); json_string(o, L->min_text);
+            sb_puts(o, ", "); key(o, "max_exact"); json_string(o, L->max_text);
+            sb_putc(o, '}');
+        }
+    } else {
+        /* Several factors: each level's marginal mean (model-based). */
+        for (size_t i = 0; i < r->nmargins; i++) {
+            const avow_margin_result *mr = &r->margins[i];
+            sb_puts(o, i ? ",\n    {" : "\n    {");
+            key(o, "factor"); json_string(o, p->factors[mr->factor].name);
+            sb_puts(o, ", "); key(o, "level"); json_string(o, p->factors[mr->factor].levels[mr->level].name);
+            sb_printf(o, ", \"n\": %llu, ", (unsigned long long)mr->n);
+            key(o, "mean"); num17(o, mr->mean);
+            sb_puts(o, ", "); key(o, "se"); num17(o, mr->se);
+            sb_putc(o, '}');
+        }
+    }
+    sb_puts(o, "\n  ],\n  \"cells\": [");
     for (size_t i = 0; i < r->ncells; i++) {
         const avow_level_result *L = &r->levels[i];
         sb_puts(o, i ? ",\n    {" : "\n    {");
-        key(o, "factor"); json_string(o, p->factors[0].name);
-        sb_puts(o, ", "); key(o, "level"); json_string(o, plan_cell_name(p, i));
-        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)L->n);
+        key(o, "cell"); json_string(o, plan_cell_name(p, i));
+        sb_puts(o, ", \"levels\": {");
+        for (size_t f = 0; f < p->nfactors; f++) {
+            if (f) sb_puts(o, ", ");
+            key(o, p->factors[f].name);
+            json_string(o, p->factors[f].levels[plan_cell_level(p, i, f)].name);
+        }
+        sb_printf(o, "}, \"n\": %llu, ", (unsigned long long)L->n);
         key(o, "mean"); num17(o, L->mean);
         sb_puts(o, ", "); key(o, "sd"); num17(o, L->sd);
         sb_puts(o, ", "); key(o, "min"); num17(o, L->min);
         sb_puts(o, ", "); key(o, "max"); num17(o, L->max);
-        sb_puts(o, ", "); key(o, "min_exact"); json_string(o, L->min_text);
-        sb_puts(o, ", "); key(o, "max_exact"); json_string(o, L->max_text);
+        sb_puts(o, ", "); key(o, "min_exact"); json_string(o, L->n ? L->min_text : NULL);
+        sb_puts(o, ", "); key(o, "max_exact"); json_string(o, L->n ? L->max_text : NULL);
         sb_putc(o, '}');
     }
-    sb_puts(o, "\n  ],\n  \"anova\": [");
-    for (int i = 0; i < 3; i++) {
+    sb_puts(o, "\n  ],\n  \"blocks\": [");
+    for (size_t i = 0; i < r->nblocks; i++) {
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        key(o, "block"); json_string(o, r->blocks[i].label);
+        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)r->blocks[i].n);
+        key(o, "mean"); num17(o, r->blocks[i].mean);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, r->nblocks ? "\n  ],\n  \"model\": {" : "],\n  \"model\": {");
+    static const char *const fits[] = {"one-factor", "cell-means", "least-squares"};
+    static const char *const inter[] = {"all", "none", "pairs"};
+    key(o, "fit"); json_string(o, fits[r->fit]);
+    sb_puts(o, ", "); key(o, "interactions"); json_string(o, inter[p->interactions]);
+    sb_puts(o, ", "); key(o, "block"); json_string(o, p->block ? p->block->name : NULL);
+    sb_printf(o, ", \"balanced\": %s, \"terms_adjusted_for_each_other\": true, \"empty_cells\": %zu, ",
+              r->balanced ? "true" : "false", r->empty_cells);
+    key(o, "df_within_cells"); num17(o, r->df_within);
+    sb_puts(o, ", "); key(o, "df_left_out"); num17(o, r->df_lof);
+    sb_puts(o, "},\n  \"anova\": [");
+    static const char *const kinds[] = {"term", "block", "residual", "total"};
+    for (size_t i = 0; i < r->nanova; i++) {
         const avow_anova_row *A = &r->anova[i];
         sb_puts(o, i ? ",\n    {" : "\n    {");
         key(o, "source"); json_string(o, A->source);
+        sb_puts(o, ", "); key(o, "kind"); json_string(o, kinds[A->kind]);
         sb_puts(o, ", "); key(o, "df"); num17(o, A->df);
         sb_puts(o, ", "); key(o, "ss"); num17(o, A->ss);
         sb_puts(o, ", "); key(o, "ms"); num17(o, A->ms);
@@ -151,25 +211,31 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     num17(o, r->ncontrasts ? r->contrast_ss_sum : NAN);
     sb_puts(o, "},\n  \"explore\": [");
     int first = 1;
-    if (r->npairs) {
-        sb_printf(o, "\n    {\"method\": \"%s\", \"critical_value\": ",
-                  p->separate_variances ? "games-howell" : "tukey-kramer");
-        num17(o, r->pairs_crit);
-        sb_puts(o, ", \"statistic\": \"studentized range\", \"comparisons\": [");
-        pairs_json(o, p, r->pairs, r->npairs);
-        sb_puts(o, "]}");
+    for (size_t i = 0; i < r->nexplore_sets; i++) {
+        const avow_explore_result *er = &r->explore_sets[i];
+        const plan_explore *e = er->set;
+        sb_puts(o, first ? "\n    {" : ",\n    {");
         first = 0;
-    }
-    if (r->nversus) {
-        sb_puts(o, first ? "\n    " : ",\n    ");
-        sb_puts(o, "{\"method\": \"dunnett\", \"control\": ");
-        json_string(o, plan_cell_name(p, p->versus_cell));
-        sb_puts(o, ", \"alternative\": \"two-sided\", \"critical_value\": ");
-        num17(o, r->versus_crit);
-        sb_puts(o, ", \"statistic\": \"|t|\", \"comparisons\": [");
-        pairs_json(o, p, r->versus, r->nversus);
+        if (e->kind == EXPLORE_PAIRS) {
+            sb_printf(o, "\"method\": \"%s\"", p->separate_variances ? "games-howell" : "tukey-kramer");
+        } else {
+            sb_puts(o, "\"method\": \"dunnett\", \"control\": ");
+            json_string(o, mean_name(p, e, e->control));
+            sb_puts(o, ", \"alternative\": \"two-sided\"");
+            sb_printf(o, ", \"approximate\": %s", er->approximate ? "true" : "false");
+        }
+        sb_puts(o, ", \"factor\": ");
+        json_string(o, e->factor >= 0 ? p->factors[e->factor].name : NULL);
+        sb_puts(o, ", \"within\": ");
+        json_string(o, e->within >= 0 ? p->factors[e->within].name : NULL);
+        sb_puts(o, ", \"at\": ");
+        json_string(o, er->slice >= 0 ? p->factors[e->within].levels[er->slice].name : NULL);
+        sb_printf(o, ", \"means\": %zu, \"critical_value\": ", er->k);
+        num17(o, er->crit);
+        sb_printf(o, ", \"statistic\": \"%s\", \"comparisons\": [",
+                  e->kind == EXPLORE_PAIRS ? "studentized range" : "|t|");
+        pairs_json(o, p, e, er->pairs, er->npairs);
         sb_puts(o, "]}");
-        first = 0;
     }
     if (r->nexplores) {
         sb_puts(o, first ? "\n    " : ",\n    ");

@@ -7,6 +7,9 @@
 #include "avow/render.h"
 #include "table.h"
 
+/* Most rows of the ANOVA table: every term of eight factors, the block, residual, total. */
+#define AVOW_MAX_ROWS 259
+
 /* A number with enough significant digits to show its integer part and four more
  * (at least six), without exponent unless it is very large or very small. */
 static void fmt_val(char *buf, size_t size, double v)
@@ -132,8 +135,15 @@ static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t 
 }
 
 /* Rows of exploratory comparisons of two levels. */
-static void pair_table(strbuf *o, const avow_plan *p, const avow_pair_result *rs, size_t n, int conf,
-                       const char *stat)
+/* Name of mean i of an exploration: a treatment cell, or a level of the set's factor. */
+static const char *mean_name(const avow_plan *p, const plan_explore *e, size_t i)
+{
+    if (e->factor < 0) return plan_cell_name(p, i);
+    return p->factors[e->factor].levels[i].name;
+}
+
+static void pair_table(strbuf *o, const avow_plan *p, const plan_explore *e, const avow_pair_result *rs,
+                       size_t n, int conf, const char *stat)
 {
     double *vals = avow_calloc(4 * n + 1, sizeof *vals);
     int dec = 4;
@@ -155,7 +165,7 @@ static void pair_table(strbuf *o, const avow_plan *p, const avow_pair_result *rs
         const avow_pair_result *r = &rs[i];
         char a[64], b[64];
         table_row(&t);
-        table_cell(&t, 0, "%s - %s", plan_cell_name(p, r->a), plan_cell_name(p, r->b));
+        table_cell(&t, 0, "%s - %s", mean_name(p, e, r->a), mean_name(p, e, r->b));
         fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(&t, 1, "%s", a);
         fmt_fixed(a, sizeof a, r->se, dec); table_cell(&t, 2, "%s", a);
         table_cell(&t, 3, "%.3f", r->stat);
@@ -210,14 +220,23 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     echo_study(ctx, o);
 
     strbuf h = {0};
-    sb_printf(&h, "Summaries of %s%s%s%s by %s", p->response, unit[0] ? " (" : "", unit, unit[0] ? ")" : "",
-              p->factors[0].name);
+    if (p->nfactors == 1)
+        sb_printf(&h, "Summaries of %s%s%s%s by %s", p->response, unit[0] ? " (" : "", unit, unit[0] ? ")" : "",
+                  p->factors[0].name);
+    else
+        sb_printf(&h, "Summaries of %s%s%s%s by cell", p->response, unit[0] ? " (" : "", unit, unit[0] ? ")" : "");
     heading(o, h.s ? h.s : "Levels");
     sb_free(&h);
-    table_init(&t, 6, "lrrrrr");
+    size_t nf = p->nfactors, nc = nf + 5;
+    char align[AVOW_MAX_FACTORS + 6];
+    for (size_t i = 0; i < nc; i++) align[i] = i < nf ? 'l' : 'r';
+    align[nc] = 0;
+    table_init(&t, nc, align);
     table_row(&t);
-    table_cell(&t, 0, "level"); table_cell(&t, 1, "n"); table_cell(&t, 2, "mean");
-    table_cell(&t, 3, "std. dev."); table_cell(&t, 4, "min"); table_cell(&t, 5, "max");
+    if (nf == 1) table_cell(&t, 0, "level");
+    else for (size_t f = 0; f < nf; f++) table_cell(&t, f, "%s", p->factors[f].name);
+    table_cell(&t, nf, "n"); table_cell(&t, nf + 1, "mean");
+    table_cell(&t, nf + 2, "std. dev."); table_cell(&t, nf + 3, "min"); table_cell(&t, nf + 4, "max");
     double *col = avow_calloc(r->ncells ? r->ncells : 1, sizeof *col);
     int dmean = 4, dsd = 4;
     if (col) {
@@ -240,28 +259,83 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     for (size_t i = 0; i < r->ncells; i++) {
         const avow_level_result *L = &r->levels[i];
         table_row(&t);
-        table_cell(&t, 0, "%s", plan_cell_name(p, i));
-        table_cell(&t, 1, "%llu", (unsigned long long)L->n);
-        fmt_fixed(a, sizeof a, L->mean, dmean); table_cell(&t, 2, "%s", a);
-        fmt_fixed(a, sizeof a, L->sd, dsd); table_cell(&t, 3, "%s", a);
-        table_cell(&t, 4, "%s", L->min_text);
-        table_cell(&t, 5, "%s", L->max_text);
+        if (nf == 1) table_cell(&t, 0, "%s", plan_cell_name(p, i));
+        else for (size_t f = 0; f < nf; f++) table_cell(&t, f, "%s", p->factors[f].levels[plan_cell_level(p, i, f)].name);
+        table_cell(&t, nf, "%llu", (unsigned long long)L->n);
+        fmt_fixed(a, sizeof a, L->mean, dmean); table_cell(&t, nf + 1, "%s", a);
+        fmt_fixed(a, sizeof a, L->sd, dsd); table_cell(&t, nf + 2, "%s", a);
+        table_cell(&t, nf + 3, "%s", L->min_text);
+        table_cell(&t, nf + 4, "%s", L->max_text);
     }
     table_render(&t, 3, o);
     table_free(&t);
+    if (p->block)
+        sb_printf(o, "   Cells pool the %zu blocks of `%s`; the standard deviation includes the spread between blocks.\n",
+                  r->nblocks, p->block->name);
+
+    if (r->nmargins) {
+        heading(o, "Level means, averaged over the other factors");
+        table_init(&t, 5, "llrrr");
+        table_row(&t);
+        table_cell(&t, 0, "factor"); table_cell(&t, 1, "level"); table_cell(&t, 2, "n");
+        table_cell(&t, 3, "mean"); table_cell(&t, 4, "std. error");
+        double *mv = avow_calloc(2 * r->nmargins, sizeof *mv);
+        int dm = dmean;
+        if (mv) {
+            for (size_t i = 0; i < r->nmargins; i++) { mv[2 * i] = r->margins[i].mean; mv[2 * i + 1] = r->margins[i].se; }
+            int d2 = column_decimals(mv, 2 * r->nmargins);
+            dm = d2 > dmean ? d2 : dmean;
+            avow_free(mv);
+        }
+        for (size_t i = 0; i < r->nmargins; i++) {
+            const avow_margin_result *mr = &r->margins[i];
+            table_row(&t);
+            if (i == 0 || r->margins[i - 1].factor != mr->factor) table_cell(&t, 0, "%s", p->factors[mr->factor].name);
+            table_cell(&t, 1, "%s", p->factors[mr->factor].levels[mr->level].name);
+            table_cell(&t, 2, "%llu", (unsigned long long)mr->n);
+            fmt_fixed(a, sizeof a, mr->mean, dm); table_cell(&t, 3, "%s", a);
+            fmt_fixed(a, sizeof a, mr->se, dm); table_cell(&t, 4, "%s", a);
+        }
+        table_render(&t, 3, o);
+        table_free(&t);
+        sb_puts(o, r->fit == FIT_GENERAL
+                   ? "   Means of the fitted cells, each level of the other factors weighted equally.\n"
+                   : "   Means of the cell means, each level of the other factors weighted equally.\n");
+    }
+    if (r->nblocks) {
+        strbuf hb = {0};
+        sb_printf(&hb, "Blocks: %s%s%s%s", p->block->name, p->block->label ? " (" : "",
+                  p->block->label ? p->block->label : "", p->block->label ? ")" : "");
+        heading(o, hb.s ? hb.s : "Blocks");
+        sb_free(&hb);
+        table_init(&t, 3, "lrr");
+        table_row(&t);
+        table_cell(&t, 0, "block"); table_cell(&t, 1, "n"); table_cell(&t, 2, "mean");
+        for (size_t i = 0; i < r->nblocks; i++) {
+            table_row(&t);
+            table_cell(&t, 0, "%s", r->blocks[i].label);
+            table_cell(&t, 1, "%llu", (unsigned long long)r->blocks[i].n);
+            fmt_fixed(a, sizeof a, r->blocks[i].mean, dmean); table_cell(&t, 2, "%s", a);
+        }
+        table_render(&t, 3, o);
+        table_free(&t);
+    }
 
     heading(o, "Analysis of variance");
     table_init(&t, 6, "lrrrrr");
     table_row(&t);
     table_cell(&t, 0, "source"); table_cell(&t, 1, "df"); table_cell(&t, 2, "sum of squares");
     table_cell(&t, 3, "mean square"); table_cell(&t, 4, "F"); table_cell(&t, 5, "p");
-    double ssv[3] = {r->anova[0].ss, r->anova[1].ss, r->anova[2].ss};
-    double msv[2] = {r->anova[0].ms, r->anova[1].ms};
-    int dss = column_decimals(ssv, 3), dms = column_decimals(msv, 2);
-    for (int i = 0; i < 3; i++) {
+    double ssv[AVOW_MAX_ROWS], msv[AVOW_MAX_ROWS];
+    size_t nrow = r->nanova < AVOW_MAX_ROWS ? r->nanova : AVOW_MAX_ROWS;
+    for (size_t i = 0; i < nrow; i++) { ssv[i] = r->anova[i].ss; msv[i] = r->anova[i].ms; }
+    int dss = column_decimals(ssv, nrow), dms = column_decimals(msv, nrow - 1);
+    for (size_t i = 0; i < nrow; i++) {
         const avow_anova_row *A = &r->anova[i];
         table_row(&t);
-        table_cell(&t, 0, "%s", i == 0 ? "between levels" : A->source);
+        if (r->fit == FIT_ONEWAY && A->kind == ROW_TERM) table_cell(&t, 0, "between levels");
+        else if (A->kind == ROW_BLOCK) table_cell(&t, 0, "%s (block)", A->source);
+        else table_cell(&t, 0, "%s", A->source);
         table_cell(&t, 1, "%.0f", A->df);
         fmt_fixed(a, sizeof a, A->ss, dss); table_cell(&t, 2, "%s", a);
         if (!isnan(A->ms)) { fmt_fixed(a, sizeof a, A->ms, dms); table_cell(&t, 3, "%s", a); }
@@ -276,8 +350,35 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     sb_printf(o, "   R-squared %s; residual standard deviation %s%s%s; grand mean %s\n", a, b,
               unit[0] ? " " : "", unit, c);
     if (isnan(r->anova[0].f))
-        sb_puts(o, "   Every observation equals its level's mean: there is no residual variation, so F\n"
-                   "   and the contrast tests are not defined.\n");
+        sb_puts(o, r->fit == FIT_ONEWAY
+                   ? "   Every observation equals its level's mean: there is no residual variation, so F\n"
+                     "   and the contrast tests are not defined.\n"
+                   : "   Every observation equals its fitted value: there is no residual variation, so F\n"
+                     "   and the contrast tests are not defined.\n");
+    if (p->nfactors > 1 || p->block) {
+        if (r->balanced)
+            sb_puts(o, "   Balanced data: every cell has the same number of runs, and the rows add up to the total.\n");
+        else
+            sb_puts(o, "   Unbalanced data: each row's sum of squares is adjusted for every other row (a linear\n"
+                       "   hypothesis on the cell means), so the rows need not add up to the total.\n");
+    }
+    if (r->fit == FIT_GENERAL && r->df_lof > 0) {
+        const char *left = p->block && p->interactions == INTER_ALL ? "block-by-treatment interaction"
+                           : p->block ? "block-by-treatment interaction and the interactions left out"
+                           : "interactions left out of the model";
+        if (r->df_within == 0)
+            sb_printf(o, "   One run per cell: the residual is the %s (%.0f df),\n"
+                         "   which the model assumes is noise.\n", left, r->df_lof);
+        else
+            sb_printf(o, "   The residual pools %.0f df of replicates within cells and %.0f df of the\n"
+                         "   %s, which the model assumes is noise.\n", r->df_within, r->df_lof, left);
+    }
+    if (r->empty_cells && p->block)
+        sb_printf(o, "   %zu block-by-treatment cell%s without data; the model still estimates every row.\n",
+                  r->empty_cells, r->empty_cells == 1 ? " is" : "s are");
+    else if (r->empty_cells)
+        sb_printf(o, "   %zu cell%s without data; the model still estimates every row.\n",
+                  r->empty_cells, r->empty_cells == 1 ? " is" : "s are");
 
     if (r->ncontrasts) {
         strbuf hh = {0};
@@ -320,24 +421,57 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
                           x->pc->side == SIDE_GREATER ? "above" : "below");
         }
     }
-    if (r->npairs || r->nversus) {
+    if (r->nexplore_sets) {
         heading(o, "Exploratory comparisons (after seeing the data; adjusted, simultaneous intervals)");
-        if (r->npairs && p->separate_variances) {
-            sb_printf(o, "Every pair of levels, Games-Howell: each level's own variance, studentized range for\n"
-                         "%zu means with Welch-Satterthwaite df for each pair\n", r->ncells);
-            pair_table(o, p, r->pairs, r->npairs, conf, "q");
-        } else if (r->npairs) {
-            fmt_val(a, sizeof a, r->pairs_crit);
-            sb_printf(o, "Every pair of levels, Tukey-Kramer: studentized range for %zu means and %.0f df,\n"
-                         "upper %s point %s\n", r->ncells, r->anova[1].df, p->alpha_text, a);
-            pair_table(o, p, r->pairs, r->npairs, conf, "q");
+        for (size_t i = 0; i < r->nexplore_sets; i++) {
+            const avow_explore_result *er = &r->explore_sets[i];
+            const plan_explore *e = er->set;
+            strbuf what = {0}, whats = {0};
+            if (e->factor < 0) { sb_puts(&what, "cell"); sb_puts(&whats, "cells"); }
+            else if (p->nfactors == 1) { sb_puts(&what, "level"); sb_puts(&whats, "levels"); }
+            else {
+                sb_printf(&what, "level of `%s`", p->factors[e->factor].name);
+                sb_printf(&whats, "levels of `%s`", p->factors[e->factor].name);
+            }
+            strbuf where = {0};
+            if (er->slice >= 0)
+                sb_printf(&where, " within %s = %s", p->factors[e->within].name,
+                          p->factors[e->within].levels[er->slice].name);
+            else if (e->factor >= 0 && p->nfactors > 1)
+                sb_puts(&where, ", averaged over the other factors");
+            if (i) sb_putc(o, '\n');
+            if (e->kind == EXPLORE_PAIRS && p->separate_variances) {
+                sb_printf(o, "Every pair of %s%s, Games-Howell: each %s own variance, studentized range\n"
+                             "for %zu means with Welch-Satterthwaite df for each pair\n",
+                          whats.s ? whats.s : "", where.s ? where.s : "", p->nfactors == 1 ? "level's" : "cell's", er->k);
+                pair_table(o, p, e, er->pairs, er->npairs, conf, "q");
+            } else if (e->kind == EXPLORE_PAIRS) {
+                fmt_val(a, sizeof a, er->crit);
+                if (where.len)
+                    sb_printf(o, "Every pair of %s%s;\nTukey-Kramer: studentized range for %zu means and %.0f df, "
+                                 "upper %s point %s\n", whats.s ? whats.s : "", where.s, er->k,
+                              r->anova[r->nanova - 2].df, p->alpha_text, a);
+                else
+                    sb_printf(o, "Every pair of %s, Tukey-Kramer: studentized range for %zu means and %.0f df,\n"
+                                 "upper %s point %s\n", whats.s ? whats.s : "", er->k,
+                              r->anova[r->nanova - 2].df, p->alpha_text, a);
+                pair_table(o, p, e, er->pairs, er->npairs, conf, "q");
+            } else {
+                fmt_val(a, sizeof a, er->crit);
+                sb_printf(o, "Each %s against %s%s%sDunnett (two-sided): critical |t| %s\n", what.s ? what.s : "",
+                          mean_name(p, e, e->control), where.s ? where.s : "", where.len ? ";\n" : ", ", a);
+                if (er->approximate)
+                    sb_puts(o, "(approximate: with these data the means are correlated beyond Dunnett's product form)\n");
+                pair_table(o, p, e, er->pairs, er->npairs, conf, "|t|");
+            }
+            sb_free(&what);
+            sb_free(&whats);
+            sb_free(&where);
         }
-        if (r->nversus) {
-            fmt_val(a, sizeof a, r->versus_crit);
-            sb_printf(o, "%sEach level against %s, Dunnett (two-sided): critical |t| %s\n",
-                      r->npairs ? "\n" : "", plan_cell_name(p, p->versus_cell), a);
-            pair_table(o, p, r->versus, r->nversus, conf, "|t|");
-        }
+        int sliced = 0;
+        for (size_t i = 0; i < r->nexplore_sets; i++) sliced |= r->explore_sets[i].slice >= 0;
+        if (sliced)
+            sb_puts(o, "Comparisons within a level of another factor are adjusted within that level.\n");
     }
     if (r->nexplores) {
         heading(o, "Exploratory contrasts (chosen after seeing data; Scheffe, simultaneous)");
@@ -387,11 +521,11 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         }
         if (r->complete_set) {
             fmt_val(a, sizeof a, r->contrast_ss_sum);
-            fmt_val(b, sizeof b, r->anova[0].ss);
+            fmt_val(b, sizeof b, r->fit == FIT_ONEWAY ? r->anova[0].ss : r->ss_cells);
             sb_printf(o, "- The %zu planned contrasts are mutually orthogonal with the replicates obtained, so their\n"
-                         "  sums of squares add up to the between-levels sum of squares: %s = %s.\n",
-                      r->ncontrasts, a, b);
-        } else if (r->ncontrasts > 1 && !r->orthogonal_set) {
+                         "  sums of squares add up to the between-%s sum of squares: %s = %s.\n",
+                      r->ncontrasts, r->fit == FIT_ONEWAY ? "levels" : "cells", a, b);
+        } else if (r->ncontrasts > 1 && !r->orthogonal_set && r->fit != FIT_GENERAL) {
             sb_puts(o, "- The planned contrasts are not all orthogonal with the replicates obtained: their tests\n"
                        "  share information and their sums of squares do not split the between-levels sum.\n");
         }
@@ -401,7 +535,7 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             sb_puts(o, "- One-sided contrasts use the one-sided p-value in their declared direction and a\n"
                        "  one-sided interval.\n");
     }
-    if (r->npairs || r->nversus || r->nexplores)
+    if (r->nexplore_sets || r->nexplores)
         sb_puts(o, "- Exploratory comparisons were chosen after seeing the data or as a screen of every\n"
                    "  difference; they are adjusted for the whole set they belong to, and their findings\n"
                    "  are leads to confirm in a new study, not conclusions.\n");

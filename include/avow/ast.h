@@ -99,7 +99,7 @@ typedef struct ast_plan_item {
 typedef enum {
     ST_STUDY, ST_RESPONSE, ST_FACTOR, ST_DATA, ST_ALPHA, ST_ADJUST, ST_ORTHOGONAL,
     ST_CONTRAST, ST_EXPLORE_PAIRS, ST_EXPLORE_VERSUS, ST_EXPLORE_CONTRAST, ST_PLAN,
-    ST_VARIANCES,
+    ST_VARIANCES, ST_BLOCK, ST_INTERACTIONS,
     ST_COUNT            /* number of statement kinds */
 } ast_stmt_kind;
 
@@ -113,9 +113,10 @@ typedef struct ast_stmt {
     avow_span key;              /* its first keyword (both words for `explore x`) */
     ast_str *str;               /* study: title; response/factor: label; data: path */
     ast_name name;              /* response, factor, contrast; versus: the control level */
-    ast_name factor;            /* versus: qualifying factor */
+    ast_name factor;            /* versus: qualifying factor; pairs: the factor compared */
+    ast_name within;            /* explore pairs / versus: compared within each level of this factor */
     ast_str *unit;              /* response: unit */
-    ast_level *levels;          /* factor */
+    ast_level *levels;          /* factor, block (NULL: block levels come from the data) */
     ast_data_item *items;       /* data */
     ast_num num;                /* alpha */
     ast_name method;            /* adjust: the method name as written */

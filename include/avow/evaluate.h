@@ -27,20 +27,38 @@ int eval_sha256_join(eval_hash_job *job, char *hex);
 /* SHA-256 of a buffer. */
 void eval_sha256_bytes(const void *bytes, size_t len, char *hex);
 
+/* Most blocks a study's data may hold. */
+#define AVOW_MAX_BLOCKS 10000
+
+/* The data reduced to exact sufficient statistics: one accumulator per full cell (a
+ * treatment cell within a block), block-major: acc[b * plan->ncells + t]. Without a
+ * block there is one "block". Blocks taken from the data are numbered in order of first
+ * appearance. */
+typedef struct avow_data {
+    avow_acc *acc;          /* nblocks * ncells accumulators */
+    size_t ncells;          /* treatment cells (plan->ncells) */
+    size_t nblocks;         /* blocks seen or declared (1 without a block) */
+    size_t cap;             /* blocks allocated */
+    char **block_labels;    /* labels of blocks taken from the data (avow_malloc), else NULL */
+} avow_data;
+
+/* Prepare d for the plan (declared blocks, or one). Returns AVOW_OK or AVOW_ENOMEM. */
+int eval_data_init(avow_data *d, const avow_plan *plan);
+void eval_data_free(avow_data *d);
+
 /* Read the data file at `path` (shown in messages as `shown`) for the plan: map columns
  * and level labels, take each response value exactly, and account for every row.
- * cells: plan->ncells accumulators, initialised by the caller. Errors (each
- * `FILE:LINE:COL: error: message`, at most AVOW_MAX_DATA_ERRORS) are appended to errs.
- * Returns the number of errors; 0 when the data fit the study. */
-size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_acc *cells,
+ * Errors (each `FILE:LINE:COL: error: message`, at most AVOW_MAX_DATA_ERRORS) are
+ * appended to errs. Returns the number of errors; 0 when the data fit the study. */
+size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_data *data,
                  avow_results *res, strbuf *errs);
 
-/* Analyse the accumulated data: level summaries, the ANOVA table, planned and
- * exploratory contrasts with their adjustments. res->levels and the contrast arrays are
- * allocated with avow_malloc; release them with eval_results_free.
+/* Analyse the accumulated data: cell summaries, the ANOVA table, planned and
+ * exploratory contrasts with their adjustments. Result arrays are allocated with
+ * avow_malloc; release them with eval_results_free.
  * Returns AVOW_OK, AVOW_ENOMEM or AVOW_EDOM (data that cannot be analysed; a message
  * is appended to errs). */
-int eval_analyse(const avow_plan *plan, const avow_acc *cells, avow_results *res, strbuf *errs);
+int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res, strbuf *errs);
 
 void eval_results_free(avow_results *res);
 

@@ -14,6 +14,10 @@
 #include "avow/rational.h"
 
 
+/* Most treatment factors in one study, and most treatment cells (combinations). */
+#define AVOW_MAX_FACTORS 8
+#define AVOW_MAX_CELLS 4096
+
 typedef struct plan_level {
     const char *name;       /* level name (decoded) */
     const char *code;       /* label in the data when it differs from name, or NULL */
@@ -31,6 +35,27 @@ typedef struct plan_factor {
     size_t nlevels;
     avow_span span;         /* the factor statement */
 } plan_factor;
+
+/* Which interactions of the treatment factors the model keeps (`interactions`). */
+typedef enum { INTER_ALL = 0, INTER_NONE, INTER_PAIRS } plan_interactions;
+
+/* One term of the model's treatment part: a main effect or an interaction. */
+typedef struct plan_term {
+    const char *name;       /* "resin", "resin by heat" */
+    unsigned mask;          /* bit f set: treatment factor f takes part */
+    size_t order;           /* number of factors in the term */
+    size_t df;              /* product of (levels - 1) over its factors */
+} plan_term;
+
+/* One set of exploratory comparisons (`explore pairs`, `explore versus`). */
+typedef enum { EXPLORE_PAIRS = 0, EXPLORE_VERSUS } plan_explore_kind;
+typedef struct plan_explore {
+    plan_explore_kind kind;
+    long factor;            /* the factor whose levels are compared; -1: every treatment cell */
+    long within;            /* compared within each level of this factor; -1: marginal means */
+    size_t control;         /* versus: the control level of `factor` (the cell when factor is -1) */
+    avow_span span;         /* the statement */
+} plan_explore;
 
 /* A contrast reduced to one exact coefficient per cell. */
 typedef struct plan_contrast {
@@ -51,11 +76,20 @@ typedef struct avow_plan {
     const char *unit;           /* or NULL */
     plan_factor *factors;       /* treatment factors */
     size_t nfactors;
-    size_t ncells;              /* number of cells (levels of the one factor in version 1) */
+    size_t ncells;              /* treatment cells: every combination of the factors' levels,
+                                   the last factor varying fastest */
+    const char **cell_names;    /* plan_cell_name of every cell */
+    plan_factor *block;         /* the blocking factor, or NULL */
+    int block_from_data;        /* its levels are taken from the data (block->nlevels 0) */
+    plan_interactions interactions; /* interactions the model keeps */
+    plan_term *terms;           /* the treatment terms of the model, main effects first */
+    size_t nterms;
+    size_t treat_df;            /* sum of the terms' df: the dimension of the treatment part */
+    int saturated;              /* no block and every interaction: the cell-means model */
 
     int has_data;               /* a data statement is present */
     const char *data_path;      /* as written, relative to the study file's folder */
-    const char **columns;       /* per factor, then the response: the column name */
+    const char **columns;       /* per factor, then the block (if any), then the response */
     const char **missing;       /* missing-value tokens */
     size_t nmissing;
     const char *sha256;         /* lowercase hex lock, or NULL */
@@ -72,9 +106,8 @@ typedef struct avow_plan {
     avow_rat *ortho;            /* ncontrasts^2 products sum c_i d_i / n_i */
     plan_contrast *explores;    /* exploratory contrasts (Scheffe) */
     size_t nexplores;
-    int explore_pairs;          /* all pairwise comparisons requested */
-    int has_versus;             /* comparisons with a control requested */
-    size_t versus_cell;         /* the control */
+    plan_explore *explore_sets; /* exploratory comparison sets, in source order */
+    size_t nexplore_sets;
 
     int has_plan;               /* a plan block is present */
     int64_t *replicates;        /* planned replicates per cell, or NULL */
@@ -96,7 +129,24 @@ typedef struct avow_plan {
  * Returns the number of errors (0: the plan is complete and valid). */
 size_t check_study(avow_ctx *ctx, const ast_study *study, avow_plan *plan);
 
-/* Name of a cell, e.g. "oven60" (arena). */
+/* Name of a treatment cell: the level name with one factor ("oven60"), else the
+ * language's own form "cell(A, high)" (arena; "?" when out of memory). */
 const char *plan_cell_name(const avow_plan *plan, size_t cell);
+
+/* The level of factor f in a treatment cell. */
+size_t plan_cell_level(const avow_plan *plan, size_t cell, size_t f);
+
+/* The model's coding of a treatment term (sum-to-zero effect coding, the products of
+ * the factors' codes for an interaction): the value, -1, 0 or 1, of the term's column j
+ * (0 <= j < term->df) at a treatment cell. A factor with L levels has columns
+ * j = 0..L-2 with code 1 at level j, -1 at level L-1, 0 elsewhere. */
+int plan_term_code(const avow_plan *plan, const plan_term *term, size_t cell, size_t j);
+
+/* Parameters of the model (intercept, treatment terms, blocks); 0 when the number of
+ * blocks is known only from the data. */
+size_t plan_model_params(const avow_plan *plan);
+
+/* Name of column col of the data: the factor, block or response it holds. */
+const char *plan_column_role(const avow_plan *plan, size_t col);
 
 #endif

@@ -24,10 +24,28 @@ typedef struct avow_level_result {
 } avow_level_result;
 
 /* One row of the ANOVA table. Values that do not exist are NaN. */
+typedef enum { ROW_TERM = 0, ROW_BLOCK, ROW_RESIDUAL, ROW_TOTAL } avow_row_kind;
 typedef struct avow_anova_row {
-    const char *source;     /* "cure", "residual", "total" */
+    const char *source;     /* "cure", "resin by heat", the block's name, "residual", "total" */
+    avow_row_kind kind;
     double df, ss, ms, f, p;
 } avow_anova_row;
+
+/* The model-based mean of one level of a factor (several factors): the average of the
+ * fitted cell means with that level, the other factors' levels weighted equally. */
+typedef struct avow_margin_result {
+    size_t factor, level;
+    uint64_t n;             /* observations with that level */
+    double mean;            /* marginal mean */
+    double se;              /* its standard error, sqrt(MSE v) */
+} avow_margin_result;
+
+/* One block's raw summary. */
+typedef struct avow_block_result {
+    const char *label;      /* the block's level name or data label */
+    uint64_t n;
+    double mean;
+} avow_block_result;
 
 /* One tested contrast (planned or exploratory). */
 typedef struct avow_contrast_result {
@@ -44,9 +62,10 @@ typedef struct avow_contrast_result {
     int reject;             /* decision at the study's alpha after adjustment */
 } avow_contrast_result;
 
-/* One exploratory comparison of two levels (all pairs, or a level against the control). */
+/* One exploratory comparison of two means (all pairs, or a level against the control). */
 typedef struct avow_pair_result {
-    size_t a, b;            /* the cells compared: estimate = mean(a) - mean(b) */
+    size_t a, b;            /* the means compared (levels of the set's factor, or treatment
+                               cells when it compares every cell): estimate = mean(a) - mean(b) */
     double estimate;        /* difference of the two means */
     double se;              /* its standard error: sqrt(MSE (1/n_a + 1/n_b)) */
     double stat;            /* the test statistic (studentized range q, or Dunnett's |t|) */
@@ -55,6 +74,26 @@ typedef struct avow_pair_result {
     double ci_lo, ci_hi;    /* simultaneous interval for the whole set */
     int reject;             /* p_adj <= alpha */
 } avow_pair_result;
+
+/* One family of exploratory comparisons: a set of the plan, within one level of its
+ * `within` factor (or over the marginal means). */
+typedef struct avow_explore_result {
+    const plan_explore *set;    /* the set in the plan */
+    long slice;             /* level of set->within, or -1 */
+    size_t k;               /* number of means in the family */
+    avow_pair_result *pairs;
+    size_t npairs;
+    double crit;            /* pairs: studentized range point q (intervals use q/sqrt(2));
+                               versus: Dunnett's two-sided critical |t|; NaN when per pair */
+    int approximate;        /* versus: the means are correlated beyond Dunnett's product form */
+} avow_explore_result;
+
+/* How the model was fitted. */
+typedef enum {
+    FIT_ONEWAY = 0,         /* one factor: the between-levels sum of squares in closed form */
+    FIT_CELLS,              /* every interaction, no block: hypotheses on the cell means */
+    FIT_GENERAL             /* blocks or omitted interactions: least squares on the cells */
+} avow_fit;
 
 /* Everything `avow run` reports. */
 typedef struct avow_results {
@@ -76,14 +115,30 @@ typedef struct avow_results {
     size_t nmissing_lines;
     uint64_t inexact_values;    /* values that could not be held exactly (compensated) */
 
-    /* per level */
+    /* per treatment cell (pooled over blocks) */
     avow_level_result *levels;  /* ncells entries */
     size_t ncells;
+    avow_margin_result *margins; /* several factors: every level of every factor */
+    size_t nmargins;
+    avow_block_result *blocks;  /* with a block: every block */
+    size_t nblocks;
+
+    /* the model */
+    avow_fit fit;
+    int balanced;           /* every cell (within every block) has the same number of runs */
+    size_t empty_cells;     /* block-by-treatment cells without data (general fit) */
+    double df_within;       /* residual df from replicates within cells */
+    double ss_within;       /* and their sum of squares */
+    double df_lof;          /* residual df from what the model leaves out (block by
+                               treatment, omitted interactions) */
+    double ss_cells;        /* between-cells sum of squares, sum n_c (m_c - ybar)^2 over the
+                               treatment cells (cell-means fits) */
 
     /* ANOVA */
     uint64_t n;             /* observations used */
     double grand_mean;
-    avow_anova_row anova[3];    /* between levels, residual, total */
+    avow_anova_row *anova;  /* terms, block, residual, total */
+    size_t nanova;
     double r_squared;
     double resid_sd;        /* sqrt of the residual mean square */
     double mse;             /* residual mean square */
@@ -98,13 +153,9 @@ typedef struct avow_results {
     double contrast_ss_sum; /* sum of the planned contrasts' SS */
     avow_contrast_result *explores;     /* exploratory contrasts (Scheffe) */
     size_t nexplores;
-    double scheffe_crit;    /* sqrt((k - 1) F_alpha(k - 1, N - k)) */
-    avow_pair_result *pairs;    /* explore pairs: every pair, Tukey-Kramer */
-    size_t npairs;
-    double pairs_crit;      /* studentized range upper-alpha point q; intervals use q/sqrt(2) */
-    avow_pair_result *versus;   /* explore versus: each level against the control, Dunnett */
-    size_t nversus;
-    double versus_crit;     /* Dunnett's two-sided critical value */
+    double scheffe_crit;    /* sqrt(q F_alpha(q, df)), q the treatment df of the model */
+    avow_explore_result *explore_sets; /* explore pairs / versus, per slice */
+    size_t nexplore_sets;
 } avow_results;
 
 #endif

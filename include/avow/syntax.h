@@ -31,6 +31,7 @@ typedef struct lex_state {
 #define AVOW_MAX_LEVELS 1000
 #define AVOW_MAX_CONTRASTS 1000
 
+
 void lex_init(lex_state *l, avow_ctx *ctx);
 /* Next token into *t. Returns 1 for a token, 0 at the end, -1 after recording an error. */
 int lex_next(lex_state *l, avow_token *t);
