@@ -5,7 +5,7 @@ if exists("b:current_syntax")
 endif
 
 syn keyword avowStatement study response factor data alpha adjust orthogonal contrast explore plan variances block interactions
-syn keyword avowKeyword   unit at code from missing sha256 delimiter pairs versus within equal separate all replicates sigma detect power seed
+syn keyword avowKeyword   unit at code from missing sha256 delimiter pairs versus within replicates sigma detect power seed
 syn keyword avowFunction  mean trend cell interaction
 syn keyword avowMethod    none bonferroni holm sidak scheffe fdr
 syn match   avowNumber    "\<\d\+\(\.\d\+\)\=\([eE][+-]\=\d\+\)\=\>"
