@@ -128,3 +128,52 @@ int xla_inverse_int(mpz_t *A, mpq_t *Vinv, size_t n)
     xla_free_z(M, n * w);
     return rc;
 }
+
+int xla_solve_int(mpz_t *A, mpz_t *b, size_t n, mpq_t *x)
+{
+    mpz_t prev, t, u;
+    mpz_init_set_ui(prev, 1); mpz_init(t); mpz_init(u);
+    int rc = AVOW_OK;
+    for (size_t k = 0; k < n; k++) {
+        size_t piv = k;
+        while (piv < n && mpz_sgn(A[piv * n + k]) == 0) piv++;
+        if (piv == n) { rc = AVOW_EDOM; break; }
+        if (piv != k) {
+            for (size_t j = 0; j < n; j++) mpz_swap(A[k * n + j], A[piv * n + j]);
+            mpz_swap(b[k], b[piv]);
+        }
+        for (size_t i = k + 1; i < n; i++) {
+            for (size_t j = k + 1; j < n; j++) {
+                mpz_mul(t, A[k * n + k], A[i * n + j]);
+                mpz_mul(u, A[i * n + k], A[k * n + j]);
+                mpz_sub(t, t, u);
+                mpz_divexact(A[i * n + j], t, prev);
+            }
+            mpz_mul(t, A[k * n + k], b[i]);
+            mpz_mul(u, A[i * n + k], b[k]);
+            mpz_sub(t, t, u);
+            mpz_divexact(b[i], t, prev);
+            mpz_set_ui(A[i * n + k], 0);
+        }
+        mpz_set(prev, A[k * n + k]);
+    }
+    if (rc == AVOW_OK) {
+        /* Back substitution on the upper triangle, in rationals. */
+        mpq_t s, q;
+        mpq_init(s); mpq_init(q);
+        for (size_t i = n; i-- > 0;) {
+            mpq_set_z(s, b[i]);
+            for (size_t j = i + 1; j < n; j++) {
+                if (mpz_sgn(A[i * n + j]) == 0) continue;
+                mpq_set_z(q, A[i * n + j]);
+                mpq_mul(q, q, x[j]);
+                mpq_sub(s, s, q);
+            }
+            mpq_set_z(q, A[i * n + i]);
+            mpq_div(x[i], s, q);
+        }
+        mpq_clear(s); mpq_clear(q);
+    }
+    mpz_clear(prev); mpz_clear(t); mpz_clear(u);
+    return rc;
+}

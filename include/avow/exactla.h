@@ -24,6 +24,12 @@ int xla_solve(mpq_t *A, mpq_t *B, size_t n, size_t m);
  * each canonicalized once. Returns AVOW_OK, AVOW_EDOM when A is singular, AVOW_ENOMEM. */
 int xla_inverse_int(mpz_t *A, mpq_t *Vinv, size_t n);
 
+/* Solve A x = b exactly for an integer matrix A (n x n, destroyed) and an integer
+ * vector b (destroyed): fraction-free forward elimination (Bareiss 1968), whose
+ * intermediates are integer minors of [A | b], then back substitution in rationals.
+ * x (n rationals) receives the solution. AVOW_OK, AVOW_EDOM (singular) or AVOW_ENOMEM. */
+int xla_solve_int(mpz_t *A, mpz_t *b, size_t n, mpq_t *x);
+
 /* n integers, each 0 / release. */
 mpz_t *xla_alloc_z(size_t n);
 void xla_free_z(mpz_t *v, size_t n);

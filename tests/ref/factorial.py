@@ -293,6 +293,17 @@ numpy_case("unbalanced 3x4", lv, obs, [(0,), (1,), (0, 1)], None, None,
            [("m", "f0.L0 - f0.L2", marg0), ("i", "interaction(f0.L0 - f0.L1, f1.L0 - f1.L1)", inter)])
 numpy_case("additive 3x4", lv, obs, [(0,), (1,)], "none", None,
            [("m", "f0.L0 - f0.L2", marg0)])
+# larger unbalanced designs: here the interactions have more columns than the rest of
+# the model, which avow computes through the reduced model (the other route)
+for lv, tag in (([4, 5], "unbalanced 4x5"), ([2, 3, 3], "unbalanced 2x3x3")):
+    obs = []
+    for c in itertools.product(*[range(L) for L in lv]):
+        for _ in range(rng.randint(1, 4)):
+            obs.append((c, 0, "%.3f" % (100 + sum(c) + (0.7 if c[0] == c[1] else 0) + rng.gauss(0, 1))))
+    terms = [t for r in range(1, len(lv) + 1) for t in itertools.combinations(range(len(lv)), r)]
+    numpy_case(tag, lv, obs, terms, None, None, [])
+    if len(lv) == 3:
+        numpy_case(tag + " pairs", lv, obs, [t for t in terms if len(t) <= 2], "pairs", None, [])
 # one factor in blocks from the data, one block-treatment cell missing, some replicated
 obs = []
 for blk in range(5):

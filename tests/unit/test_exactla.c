@@ -71,9 +71,32 @@ static void test_integer_inverse_agrees(void **state)
             }
             for (size_t i = 0; i < n; i++)
                 for (size_t j = 0; j < n; j++) mpq_set_ui(B[i * n + j], i == j, 1);
+            /* the fraction-free solve of A x = b (b = column sums of a) first */
+            mpz_t *Z2 = xla_alloc_z(n * n), *bz = xla_alloc_z(n);
+            mpq_t *x = xla_alloc(n);
+            for (size_t i = 0; i < n * n; i++) mpz_set_si(Z2[i], a[i]);
+            for (size_t i = 0; i < n; i++) mpz_set_si(bz[i], (long)(i * 3) - 4);
+            int r0 = xla_solve_int(Z2, bz, n, x);
             int r1 = xla_solve(A, B, n, n);
             int r2 = xla_inverse_int(Z, V, n);
             assert_int_equal(r1, r2);
+            assert_int_equal(r0, r1);
+            if (r0 == AVOW_OK) {
+                /* x = V b */
+                mpq_t s0, t0;
+                mpq_init(s0); mpq_init(t0);
+                for (size_t i = 0; i < n; i++) {
+                    mpq_set_ui(s0, 0, 1);
+                    for (size_t k = 0; k < n; k++) {
+                        mpq_set_si(t0, (long)(k * 3) - 4, 1);
+                        mpq_mul(t0, t0, V[i * n + k]);
+                        mpq_add(s0, s0, t0);
+                    }
+                    assert_true(mpq_equal(s0, x[i]));
+                }
+                mpq_clear(s0); mpq_clear(t0);
+            }
+            xla_free_z(Z2, n * n); xla_free_z(bz, n); xla_free(x, n);
             if (r1 == AVOW_OK) {
                 for (size_t i = 0; i < n * n; i++) assert_true(mpq_equal(B[i], V[i]));
                 mpq_t s, t;
