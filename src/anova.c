@@ -868,7 +868,10 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
             if (any_empty) {
                 sb_puts(errs, "the data cannot estimate every term of the model: no data for ");
                 list_empty(&M, errs);
-                sb_puts(errs, "\n  hint: run the missing combinations, or leave interactions out of the model\n");
+                sb_puts(errs, plan->interactions == INTER_ALL
+                              ? "\n  hint: run the missing combinations, or leave interactions out of the model\n"
+                              : "\n  hint: every level of every factor needs data, and the cells with data must "
+                                "connect them\n");
             } else {
                 sb_puts(errs, "the data cannot estimate every term of the model: the cells with data do not "
                               "connect the levels (some effects are confounded with blocks)\n");

@@ -566,7 +566,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             uint64_t n = dec_acc_n(&data->acc[i]);
             N += n;
             if (n == 0)
-                data_error(&rs, 0, 0, "%s `%s` has no data", plan->nfactors == 1 ? "level" : "cell",
+                data_error(&rs, 0, 0, plan->nfactors == 1 ? "level `%s` has no data" : "%s has no data",
                            plan_cell_name(plan, i));
         }
         /* (with several factors the analysis counts the residual's degrees of freedom) */
