@@ -192,9 +192,14 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
             table_cell(&t, 0, "%s", l->name);
             table_cell(&t, 1, "%s", l->has_at ? l->at_text : "-");
             table_cell(&t, 2, "%s", l->code ? l->code : l->name);
-            if (p->replicates && p->nfactors == 1) table_cell(&t, 3, "%lld", (long long)p->replicates[i]);
-            else if (p->replicates) table_cell(&t, 3, "%lld", (long long)(p->replicates[0] * (int64_t)(p->ncells / f->nlevels)));
-            else table_cell(&t, 3, "-");
+            if (p->replicates) {
+                /* runs with this level: its cells' replicates, in every block */
+                int64_t r = p->nfactors == 1 ? p->replicates[i] : p->replicates[0] * (int64_t)(p->ncells / f->nlevels);
+                if (p->block && p->block_from_data) table_cell(&t, 3, "%lld per block", (long long)r);
+                else table_cell(&t, 3, "%lld", (long long)(r * (p->block ? (int64_t)p->block->nlevels : 1)));
+            } else {
+                table_cell(&t, 3, "-");
+            }
             table_cell(&t, 4, "%s", l->desc ? l->desc : "");
         }
         table_render(&t, 3, o);
