@@ -26,42 +26,10 @@
 
 #include "avow/dist.h"
 #include "avow/exactla.h"
+#include "analysis.h"
 #include "avow/dunnett.h"
 #include "avow/multiplicity.h"
 #include "avow/srange.h"
-
-/* Exact decimal text of v: plain digits while the number needs at most 6 zeros of
- * padding, scientific notation (d.ddde+N) beyond. */
-static void dec_text(avow_dec v, char *out, size_t size)
-{
-    char digits[24], buf[96];
-    int neg = v.sig < 0;
-    unsigned long long m = neg ? (unsigned long long)(-(v.sig + 1)) + 1 : (unsigned long long)v.sig;
-    int nd = snprintf(digits, sizeof digits, "%llu", m);
-    long e = v.exp;
-    size_t n = 0;
-    if (neg) buf[n++] = '-';
-    if (v.sig == 0) {
-        buf[n++] = '0';
-    } else if (e >= 0 && e <= 6) {
-        memcpy(buf + n, digits, (size_t)nd); n += (size_t)nd;
-        for (long z = 0; z < e; z++) buf[n++] = '0';
-    } else if (e < 0 && -e < nd) {
-        memcpy(buf + n, digits, (size_t)(nd + e)); n += (size_t)(nd + e);
-        buf[n++] = '.';
-        memcpy(buf + n, digits + nd + e, (size_t)-e); n += (size_t)-e;
-    } else if (e < 0 && -e - nd <= 6) {
-        buf[n++] = '0'; buf[n++] = '.';
-        for (long z = 0; z < -e - nd; z++) buf[n++] = '0';
-        memcpy(buf + n, digits, (size_t)nd); n += (size_t)nd;
-    } else {
-        buf[n++] = digits[0];
-        if (nd > 1) { buf[n++] = '.'; memcpy(buf + n, digits + 1, (size_t)nd - 1); n += (size_t)nd - 1; }
-        n += (size_t)snprintf(buf + n, sizeof buf - n, "e%+ld", e + nd - 1);
-    }
-    buf[n] = 0;
-    snprintf(out, size, "%s", buf);
-}
 
 static void set_rat(mpq_t q, avow_rat r)
 {
@@ -89,6 +57,10 @@ void eval_results_free(avow_results *res)
     res->contrasts = res->explores = NULL;
     res->explore_sets = NULL;
     res->nexplore_sets = 0;
+    avow_free(res->effects);
+    avow_free(res->checks.unusual);
+    res->effects = NULL;
+    res->checks.unusual = NULL;
 }
 
 /* ---- the fitted model ---- */
@@ -711,8 +683,8 @@ static void summarise_cells(model *M, avow_results *res)
         }
         L->min = dec_get_d(mn);
         L->max = dec_get_d(mx);
-        dec_text(mn, L->min_text, sizeof L->min_text);
-        dec_text(mx, L->max_text, sizeof L->max_text);
+        dec_format(mn, L->min_text, sizeof L->min_text);
+        dec_format(mx, L->max_text, sizeof L->max_text);
     }
     mpq_clear(ss); mpq_clear(t); mpq_clear(u);
 }
@@ -922,6 +894,12 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
     res->nanova = r;
     for (size_t i = 0; i + 2 < r; i++)
         res->anova[i].p = isnan(res->anova[i].f) ? NAN : dist_f_q(res->anova[i].f, res->anova[i].df, M.dfe);
+    /* Effect sizes of the terms and the block, from the exact sums of squares. */
+    res->effects = avow_calloc(r, sizeof *res->effects);
+    if (!res->effects) { xla_free(term_ss, nrows); rc = AVOW_ENOMEM; goto out; }
+    for (size_t i = 0; i + 2 < r; i++)
+        res->effects[i].ok = dx_effect_sizes_exact(term_ss[i], (uint64_t)res->anova[i].df, ssres,
+                                                   (uint64_t)M.dfe, sst, &res->effects[i].es) == AVOW_OK;
     xla_free(term_ss, nrows);
     /* Results beyond binary64 cannot be shown; say so rather than print infinities. */
     int finite = isfinite(res->grand_mean);
@@ -1005,6 +983,7 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
     for (size_t i = 0, j = 0; i < plan->ncontrasts; i++) {
         if (!plan->contrasts[i].valid) continue;
         contrast_basic(&M, &plan->contrasts[i], &res->contrasts[j]);
+        res->contrasts[j].std_effect = res->resid_sd > 0 ? res->contrasts[j].estimate / res->resid_sd : NAN;
         p[j] = res->contrasts[j].p;
         j++;
     }
@@ -1081,6 +1060,7 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
         if (!plan->explores[i].valid) continue;
         avow_contrast_result *cr = &res->explores[j++];
         contrast_basic(&M, &plan->explores[i], cr);
+        cr->std_effect = res->resid_sd > 0 ? cr->estimate / res->resid_sd : NAN;
         cr->p_adj = dist_f_q(cr->t * cr->t / qdf, qdf, dfe);
         cr->reject = cr->p_adj <= alpha;
         cr->ci_simultaneous = 1;
@@ -1108,6 +1088,38 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
                 rc = e->kind == EXPLORE_PAIRS ? explore_pairs(&M, res, er, alpha) : explore_versus(&M, res, er, alpha);
             }
         }
+    }
+    /* Checks of the assumptions, from the kept observations. */
+    if (data->keep && data->nobs) {
+        mpq_t *fitted = xla_alloc(M.C);
+        double *lev = avow_calloc(M.C, sizeof *lev);
+        if (!fitted || !lev) { xla_free(fitted, M.C); avow_free(lev); rc = AVOW_ENOMEM; goto out; }
+        for (size_t c = 0; c < M.C; c++) {
+            if (M.fit != FIT_GENERAL) {
+                mpq_set(fitted[c], M.mean[c]);
+                lev[c] = M.n[c] ? 1.0 / (double)M.n[c] : NAN;
+                continue;
+            }
+            const signed char *x = &M.X[c * M.p];
+            for (size_t j = 0; j < M.p; j++) {
+                if (x[j] > 0) mpq_add(fitted[c], fitted[c], M.beta[j]);
+                else if (x[j] < 0) mpq_sub(fitted[c], fitted[c], M.beta[j]);
+            }
+            /* leverage x' V x */
+            mpq_set_ui(q, 0, 1);
+            for (size_t j = 0; j < M.p; j++) {
+                if (!x[j]) continue;
+                for (size_t k = 0; k < M.p; k++) {
+                    if (!x[k]) continue;
+                    if (x[j] * x[k] > 0) mpq_add(q, q, M.V[j * M.p + k]);
+                    else mpq_sub(q, q, M.V[j * M.p + k]);
+                }
+            }
+            lev[c] = dec_mpq_get_d(q);
+        }
+        rc = eval_diagnose(plan, data, fitted, lev, res);
+        xla_free(fitted, M.C);
+        avow_free(lev);
     }
 out:
     avow_free(p); avow_free(padj);

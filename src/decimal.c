@@ -7,6 +7,7 @@
 #include <float.h>
 #include <limits.h>
 #include <math.h>
+#include <stdio.h>
 #include <string.h>
 
 __extension__ typedef __int128 i128;
@@ -828,4 +829,37 @@ int dec_oneway(const avow_acc *cells, size_t k, avow_oneway *out)
 void dec_oneway_clear(avow_oneway *o)
 {
     mpq_clears(o->q_grand_mean, o->q_ss_between, o->q_ss_within, o->q_ss_total, NULL);
+}
+
+/* Exact decimal text of v: plain digits while the number needs at most 6 zeros of
+ * padding, scientific notation (d.ddde+N) beyond. */
+void dec_format(avow_dec v, char *out, size_t size)
+{
+    char digits[24], buf[96];
+    int neg = v.sig < 0;
+    unsigned long long m = neg ? (unsigned long long)(-(v.sig + 1)) + 1 : (unsigned long long)v.sig;
+    int nd = snprintf(digits, sizeof digits, "%llu", m);
+    long e = v.exp;
+    size_t n = 0;
+    if (neg) buf[n++] = '-';
+    if (v.sig == 0) {
+        buf[n++] = '0';
+    } else if (e >= 0 && e <= 6) {
+        memcpy(buf + n, digits, (size_t)nd); n += (size_t)nd;
+        for (long z = 0; z < e; z++) buf[n++] = '0';
+    } else if (e < 0 && -e < nd) {
+        memcpy(buf + n, digits, (size_t)(nd + e)); n += (size_t)(nd + e);
+        buf[n++] = '.';
+        memcpy(buf + n, digits + nd + e, (size_t)-e); n += (size_t)-e;
+    } else if (e < 0 && -e - nd <= 6) {
+        buf[n++] = '0'; buf[n++] = '.';
+        for (long z = 0; z < -e - nd; z++) buf[n++] = '0';
+        memcpy(buf + n, digits, (size_t)nd); n += (size_t)nd;
+    } else {
+        buf[n++] = digits[0];
+        if (nd > 1) { buf[n++] = '.'; memcpy(buf + n, digits + 1, (size_t)nd - 1); n += (size_t)nd - 1; }
+        n += (size_t)snprintf(buf + n, sizeof buf - n, "e%+ld", e + nd - 1);
+    }
+    buf[n] = 0;
+    snprintf(out, size, "%s", buf);
 }

@@ -59,18 +59,21 @@ static const char help_fmt[] =
     "exit status: 0 done, 1 the file has syntax errors, 64 command-line misuse.\n";
 
 static const char help_run[] =
-    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
+    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE] [--no-diagnostics]\n"
     "\n"
     "Checks the study, reads its data file in one pass, and writes the analysis report:\n"
     "the inputs with their SHA-256 digests and row counts, the study file echoed with line\n"
     "numbers, level summaries, the ANOVA table, the planned contrasts with raw and adjusted\n"
-    "p-values, intervals and findings, exploratory contrasts, and notes.\n"
+    "p-values, intervals and findings, exploratory contrasts, effect sizes, checks of the\n"
+    "assumptions with robust alternatives, and notes.\n"
     "\n"
     "  --format text   the report for people (default)\n"
     "  --format json   the report as avow.report/1 JSON\n"
     "  --data FILE     analyse FILE instead of the study's data file (the study's sha256\n"
     "                  lock applies to its own file only; the report names the file used)\n"
     "  -o FILE         write the report to FILE atomically instead of standard output\n"
+    "  --no-diagnostics  skip the checks of the assumptions (they keep every value in\n"
+    "                  memory; without them memory stays small for any number of rows)\n"
     "\n"
     "exit status: 0 done, 1 the study file has errors, 2 the data do not fit the study\n"
     "(missing or changed file, unknown level label, non-numeric value, a level without\n"
@@ -118,9 +121,10 @@ typedef struct cli_args {
     const char *out;        /* -o FILE, or NULL */
     int json;               /* --format json */
     int write;              /* -w */
+    int no_diagnostics;     /* --no-diagnostics */
 } cli_args;
 
-enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8 };
+enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8, OPT_NODIAG = 16 };
 
 /* Parse the arguments of command `cmd`, accepting the options in `allowed`.
  * Returns -1 to go on, or the exit status to return (help printed, or misuse). */
@@ -143,6 +147,8 @@ static int parse_args(const char *cmd, int argc, char **argv, int allowed, const
             if (!a->out || !a->out[0]) return usage_error("-o needs a file name%s", "");
         } else if ((allowed & OPT_WRITE) && strcmp(s, "-w") == 0) {
             a->write = 1;
+        } else if ((allowed & OPT_NODIAG) && strcmp(s, "--no-diagnostics") == 0) {
+            a->no_diagnostics = 1;
         } else if (strcmp(s, "--help") == 0) {
             fputs(help, stdout);
             return 0;
@@ -223,7 +229,7 @@ static char *data_location(const char *study_path, const char *rel)
 static int cmd_run(int argc, char **argv)
 {
     cli_args a;
-    int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_DATA | OPT_OUT, help_run, &a);
+    int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_DATA | OPT_OUT | OPT_NODIAG, help_run, &a);
     if (r >= 0) return r;
     const char *path = a.path, *data_opt = a.data, *out_path = a.out;
     int json = a.json;
@@ -255,6 +261,7 @@ static int cmd_run(int argc, char **argv)
     avow_data data;
     memset(&data, 0, sizeof data);
     if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
+    data.keep = !a.no_diagnostics;
     if (eval_data_init(&data, &plan) != AVOW_OK) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     /* The digest is computed on a second thread while the data are read. */
     eval_hash_job *job = eval_sha256_start(data_path);

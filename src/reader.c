@@ -199,9 +199,25 @@ static int data_grow(avow_data *d, size_t blocks)
     return AVOW_OK;
 }
 
+/* Keep one observation (data->keep). */
+static int keep_obs(avow_data *d, avow_dec v, uint64_t line, size_t cell)
+{
+    if (d->nobs == d->obscap) {
+        size_t cap = d->obscap ? 2 * d->obscap : 1024;
+        avow_obs *o = avow_realloc(d->obs, cap * sizeof *o);
+        if (!o) return AVOW_ENOMEM;
+        d->obs = o;
+        d->obscap = cap;
+    }
+    d->obs[d->nobs++] = (avow_obs){v, line, (uint32_t)cell};
+    return AVOW_OK;
+}
+
 int eval_data_init(avow_data *d, const avow_plan *plan)
 {
+    int keep = d->keep;
     memset(d, 0, sizeof *d);
+    d->keep = keep;
     d->ncells = plan->ncells;
     d->nblocks = plan->block ? plan->block->nlevels : 1;
     return data_grow(d, d->nblocks ? d->nblocks : 1);
@@ -213,6 +229,7 @@ void eval_data_free(avow_data *d)
     avow_free(d->acc);
     if (d->block_labels) for (size_t b = 0; b < d->nblocks; b++) avow_free(d->block_labels[b]);
     avow_free(d->block_labels);
+    avow_free(d->obs);
     memset(d, 0, sizeof *d);
 }
 
@@ -518,7 +535,13 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         avow_dec v;
         int pr = dec_parse(yf->ptr, yf->len, &v);
         if (pr == AVOW_OK) {
+            if (data->keep && keep_obs(data, v, rec.line, block * data->ncells + cell) != AVOW_OK) {
+                data_error(&rs, 0, 0, "out of memory keeping the values for the diagnostics");
+                sb_puts(errs, "  hint: avow run --no-diagnostics keeps only the sums\n");
+                break;
+            }
             if (dec_acc_add(acc, v) != AVOW_OK) {
+                if (data->keep) data->nobs--;
                 strbuf b = {0};
                 put_field(&b, yf->ptr, yf->len);
                 data_error(&rs, rec.line, ycol + 1, "the value %s is too far from the others to be analysed",
@@ -540,6 +563,12 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
                 data_error(&rs, rec.line, ycol + 1, "the value %s is out of range", b.s ? b.s : "?");
                 sb_free(&b);
                 continue;
+            }
+            avow_dec dv;
+            if (data->keep && (dec_from_double(d, &dv) != AVOW_OK
+                               || keep_obs(data, dv, rec.line, block * data->ncells + cell) != AVOW_OK)) {
+                data_error(&rs, 0, 0, "out of memory keeping the values for the diagnostics");
+                break;
             }
             res->inexact_values++;
         } else {

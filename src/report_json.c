@@ -87,6 +87,112 @@ static void pairs_json(strbuf *o, const avow_plan *p, const plan_explore *e, con
     }
 }
 
+static void effects_json(strbuf *o, const avow_plan *p, const avow_results *r)
+{
+    sb_puts(o, "  \"effect_sizes\": {\"terms\": [");
+    int first = 1;
+    for (size_t i = 0; i + 2 < r->nanova; i++) {
+        const avow_effect_result *e = &r->effects[i];
+        sb_puts(o, first ? "\n    {" : ",\n    {");
+        first = 0;
+        key(o, "source"); json_string(o, r->anova[i].source);
+        sb_puts(o, ", "); key(o, "eta_squared"); num17(o, e->ok ? e->es.eta2 : NAN);
+        sb_puts(o, ", "); key(o, "partial_eta_squared"); num17(o, e->ok ? e->es.partial_eta2 : NAN);
+        sb_puts(o, ", "); key(o, "omega_squared"); num17(o, e->ok ? e->es.omega2 : NAN);
+        sb_puts(o, ", "); key(o, "cohen_f"); num17(o, e->ok ? e->es.cohen_f : NAN);
+        sb_puts(o, ", "); key(o, "cohen_f_ci");
+        if (e->ci_ok) { sb_putc(o, '['); num17(o, e->f_lo); sb_puts(o, ", "); num17(o, e->f_hi); sb_putc(o, ']'); }
+        else sb_puts(o, "null");
+        sb_putc(o, '}');
+    }
+    sb_puts(o, first ? "], \"contrasts\": [" : "\n  ], \"contrasts\": [");
+    for (size_t i = 0; i < r->ncontrasts; i++) {
+        sb_puts(o, i ? ", {" : "{");
+        key(o, "name"); json_string(o, r->contrasts[i].pc->name);
+        sb_puts(o, ", "); key(o, "standardized"); num17(o, r->contrasts[i].std_effect);
+        sb_putc(o, '}');
+    }
+    (void)p;
+    sb_puts(o, "]},\n");
+}
+
+/* {"statistic": .., "df1": .., "df2": .., "p": ..} or {"not_computed": "reason"} */
+static void ftest_json(strbuf *o, int rc, const avow_dx_ftest *t)
+{
+    if (rc != AVOW_OK) { sb_puts(o, "{\"not_computed\": "); json_string(o, dx_status_text(rc)); sb_putc(o, '}'); return; }
+    sb_puts(o, "{\"statistic\": "); num17(o, t->stat);
+    sb_puts(o, ", \"df1\": "); num17(o, t->df1);
+    sb_puts(o, ", \"df2\": "); num17(o, t->df2);
+    sb_puts(o, ", \"p\": "); num17(o, t->p);
+    sb_putc(o, '}');
+}
+
+static void checks_json(strbuf *o, const avow_plan *p, const avow_results *r)
+{
+    const avow_assumptions *A = &r->checks;
+    if (!A->computed) {
+        sb_puts(o, "  \"diagnostics\": {\"computed\": false},\n  \"robust\": null,\n");
+        return;
+    }
+    sb_printf(o, "  \"diagnostics\": {\"computed\": true, \"groups\": %zu, \"on_residuals\": %s,\n    \"levene\": ",
+              A->ngroups, A->on_residuals ? "true" : "false");
+    ftest_json(o, A->levene_rc, &A->levene);
+    sb_puts(o, ",\n    \"brown_forsythe\": ");
+    ftest_json(o, A->bf_rc, &A->bf);
+    sb_puts(o, ",\n    \"bartlett\": ");
+    if (A->bartlett_rc != AVOW_OK) { sb_puts(o, "{\"not_computed\": "); json_string(o, dx_status_text(A->bartlett_rc)); sb_putc(o, '}'); }
+    else {
+        sb_puts(o, "{\"statistic\": "); num17(o, A->bartlett.stat);
+        sb_puts(o, ", \"df\": "); num17(o, A->bartlett.df);
+        sb_puts(o, ", \"p\": "); num17(o, A->bartlett.p);
+        sb_putc(o, '}');
+    }
+    sb_printf(o, ",\n    \"shapiro_wilk\": ");
+    if (A->shapiro_rc != AVOW_OK) { sb_puts(o, "{\"not_computed\": "); json_string(o, dx_status_text(A->shapiro_rc)); sb_putc(o, '}'); }
+    else {
+        sb_printf(o, "{\"n\": %zu, \"w\": ", A->nresid); num17(o, A->shapiro.w);
+        sb_puts(o, ", \"p\": "); num17(o, A->shapiro.p);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, ",\n    \"residual_moments\": ");
+    if (A->moments_rc != AVOW_OK) { sb_puts(o, "{\"not_computed\": "); json_string(o, dx_status_text(A->moments_rc)); sb_putc(o, '}'); }
+    else {
+        sb_puts(o, "{\"skewness\": "); num17(o, A->moments.skewness);
+        sb_puts(o, ", \"excess_kurtosis\": "); num17(o, A->moments.kurtosis);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, ",\n    \"unusual\": {\"limit\": "); num17(o, A->unusual_limit);
+    if (A->unusual_rc != AVOW_OK) { sb_puts(o, ", \"not_computed\": "); json_string(o, dx_status_text(A->unusual_rc)); }
+    sb_printf(o, ", \"count\": %zu, \"listed\": [", A->nunusual_total);
+    for (size_t i = 0; i < A->nunusual; i++) {
+        const avow_unusual *u = &A->unusual[i];
+        sb_printf(o, "%s{\"line\": %llu, \"cell\": ", i ? ", " : "", (unsigned long long)u->line);
+        json_string(o, plan_cell_name(p, u->cell));
+        sb_puts(o, ", \"block\": ");
+        json_string(o, r->nblocks ? r->blocks[u->block].label : NULL);
+        sb_puts(o, ", \"value\": "); json_string(o, u->value_text);
+        sb_puts(o, ", \"fitted\": "); num17(o, u->fitted);
+        sb_puts(o, ", \"residual\": "); num17(o, u->residual);
+        sb_puts(o, ", \"t\": "); num17(o, u->t);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, "]}},\n  \"robust\": ");
+    if (!A->robust_applies) { sb_puts(o, "null,\n"); return; }
+    sb_puts(o, "{\"welch\": ");
+    ftest_json(o, A->welch_rc, &A->welch);
+    sb_puts(o, ", \"kruskal_wallis\": ");
+    if (A->kruskal_rc != AVOW_OK) { sb_puts(o, "{\"not_computed\": "); json_string(o, dx_status_text(A->kruskal_rc)); sb_putc(o, '}'); }
+    else {
+        sb_puts(o, "{\"h\": "); num17(o, A->kruskal.test.stat);
+        sb_puts(o, ", \"h_uncorrected\": "); num17(o, A->kruskal.h_uncorrected);
+        sb_puts(o, ", \"tie_factor\": "); num17(o, A->kruskal.tie_factor);
+        sb_puts(o, ", \"df\": "); num17(o, A->kruskal.test.df);
+        sb_puts(o, ", \"p\": "); num17(o, A->kruskal.test.p);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, "},\n");
+}
+
 void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
 {
     (void)ctx;
@@ -249,7 +355,10 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         sb_puts(o, "]}");
         first = 0;
     }
-    sb_puts(o, first ? "],\n  \"caution\": " : "\n  ],\n  \"caution\": ");
+    sb_puts(o, first ? "],\n" : "\n  ],\n");
+    effects_json(o, p, r);
+    checks_json(o, p, r);
+    sb_puts(o, "  \"caution\": ");
     json_string(o, AVOW_CAUTION);
     sb_puts(o, "\n}\n");
 }

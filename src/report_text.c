@@ -178,6 +178,167 @@ static void pair_table(strbuf *o, const avow_plan *p, const plan_explore *e, con
     table_free(&t);
 }
 
+/* Effect sizes of the terms: eta squared, (partial eta squared,) omega squared, f. */
+static void effect_table(strbuf *o, const avow_plan *p, const avow_results *r)
+{
+    int any = 0, multi = p->nfactors > 1 || p->block, ci = 0;
+    for (size_t i = 0; i + 2 < r->nanova; i++) { any |= r->effects[i].ok; ci |= r->effects[i].ci_ok; }
+    if (!any) return;
+    heading(o, "Effect sizes");
+    text_table t;
+    size_t nc = (multi ? 5 : 4) + (ci ? 1 : 0);
+    table_init(&t, nc, "lrrrrr");
+    table_row(&t);
+    size_t col = 0;
+    table_cell(&t, col++, "source");
+    table_cell(&t, col++, "eta squared");
+    if (multi) table_cell(&t, col++, "partial eta sq.");
+    table_cell(&t, col++, "omega squared");
+    table_cell(&t, col++, multi ? "f (partial)" : "Cohen's f");
+    if (ci) table_cell(&t, col++, "%d%% interval for f", (int)lround((1 - rat_to_double(p->alpha)) * 100));
+    for (size_t i = 0; i + 2 < r->nanova; i++) {
+        const avow_effect_result *e = &r->effects[i];
+        if (!e->ok) continue;
+        table_row(&t);
+        col = 0;
+        const avow_anova_row *A = &r->anova[i];
+        if (r->fit == FIT_ONEWAY) table_cell(&t, col++, "between levels");
+        else if (A->kind == ROW_BLOCK) table_cell(&t, col++, "%s (block)", A->source);
+        else table_cell(&t, col++, "%s", A->source);
+        table_cell(&t, col++, "%.4f", e->es.eta2);
+        if (multi) table_cell(&t, col++, "%.4f", e->es.partial_eta2);
+        table_cell(&t, col++, "%.4f", e->es.omega2);
+        table_cell(&t, col++, "%.4f", e->es.cohen_f);
+        if (ci) {
+            if (e->ci_ok) table_cell(&t, col++, "%.4f to %.4f", e->f_lo, e->f_hi);
+            else table_cell(&t, col++, "-");
+        }
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+    sb_puts(o, multi ? "   Eta squared: share of the total sum of squares; partial: of the term plus residual.\n"
+                       "   Omega squared corrects eta squared for chance and can fall below 0.\n"
+                     : "   Eta squared: share of the total sum of squares between levels; omega squared\n"
+                       "   corrects it for chance and can fall below 0; f = sqrt(eta^2 / (1 - eta^2)).\n");
+}
+
+/* "W = 0.2288 on 2 and 12 df, p = 0.7989", or why the test was not computed. */
+static void test_line(strbuf *o, const char *what, int rc, const char *stat, double x, double df1, double df2,
+                      double pv)
+{
+    char a[64], b[64];
+    sb_printf(o, "   %-46s", what);
+    if (rc != AVOW_OK) { sb_printf(o, "not computed: %s\n", dx_status_text(rc)); return; }
+    fmt_val(a, sizeof a, x);
+    fmt_p(b, sizeof b, pv);
+    if (isnan(df1)) sb_printf(o, "%s = %s, p = %s\n", stat, a, b);
+    else if (isnan(df2)) sb_printf(o, "%s = %s on %.0f df, p = %s\n", stat, a, df1, b);
+    else if (df2 == floor(df2)) sb_printf(o, "%s = %s on %.0f and %.0f df, p = %s\n", stat, a, df1, df2, b);
+    else sb_printf(o, "%s = %s on %.0f and %.2f df, p = %s\n", stat, a, df1, df2, b);
+}
+
+/* Checks of the assumptions, unusual observations and robust alternatives. */
+static void checks_section(strbuf *o, const avow_plan *p, const avow_results *r)
+{
+    const avow_assumptions *A = &r->checks;
+    char a[64], b[64], c[64];
+    double alpha = rat_to_double(p->alpha);
+    heading(o, "Checks of the assumptions");
+    if (!A->computed) {
+        sb_puts(o, "   Not computed: the run was made with --no-diagnostics, which keeps only the sums.\n");
+        return;
+    }
+    const char *grp = p->nfactors == 1 ? "levels" : "cells";
+    sb_printf(o, "Equal spread between the %zu %s%s:\n", A->ngroups, grp,
+              A->on_residuals ? " (on the residuals of the model)" : "");
+    test_line(o, "Levene (deviations from the means)", A->levene_rc, "W", A->levene.stat, A->levene.df1,
+              A->levene.df2, A->levene.p);
+    test_line(o, "Brown-Forsythe (deviations from the medians)", A->bf_rc, "W", A->bf.stat, A->bf.df1, A->bf.df2,
+              A->bf.p);
+    test_line(o, "Bartlett", A->bartlett_rc, "T", A->bartlett.stat, A->bartlett.df, NAN, A->bartlett.p);
+    int spread_bad = (A->levene_rc == AVOW_OK && A->levene.p <= alpha) || (A->bf_rc == AVOW_OK && A->bf.p <= alpha);
+    int spread_known = A->levene_rc == AVOW_OK || A->bf_rc == AVOW_OK;
+    if (!spread_known)
+        sb_puts(o, "   Verdict: the spread cannot be compared with these data.\n");
+    else if (spread_bad)
+        sb_printf(o, "   Verdict: the spread differs between the %s. F and the contrasts assume it does not;\n"
+                     "   %s\n", grp,
+                  A->robust_applies ? "the Welch result below, and `variances separate` for the pairs, are the safer reading."
+                                    : "treat p-values near alpha with care.");
+    else
+        sb_printf(o, "   Verdict: no sign that the spread differs between the %s.\n", grp);
+
+    sb_printf(o, "\nNormal residuals (%zu residuals from the fitted %s):\n", A->nresid,
+              r->fit == FIT_GENERAL ? "model" : p->nfactors == 1 ? "level means" : "cell means");
+    test_line(o, "Shapiro-Wilk (Royston's approximation)", A->shapiro_rc, "W", A->shapiro.w, NAN, NAN, A->shapiro.p);
+    if (A->moments_rc == AVOW_OK) {
+        fmt_val(a, sizeof a, A->moments.skewness);
+        fmt_val(b, sizeof b, A->moments.kurtosis);
+        sb_printf(o, "   %-46sskewness %s, excess kurtosis %s\n", "shape", a, b);
+    }
+    if (A->shapiro_rc == AVOW_OK && A->shapiro.p <= alpha)
+        sb_printf(o, "   Verdict: the residuals depart from a normal shape. Look at the unusual observations;\n"
+                     "   %s\n", A->robust_applies ? "the rank test below does not assume normality."
+                                                     : "treat p-values near alpha with care.");
+    else if (A->shapiro_rc == AVOW_OK)
+        sb_puts(o, "   Verdict: no sign that the residuals depart from a normal shape.\n");
+    else
+        sb_puts(o, "   Verdict: normality is not tested with these data.\n");
+
+    sb_printf(o, "\nUnusual observations (externally studentized residual beyond %g):\n", A->unusual_limit);
+    if (A->unusual_rc != AVOW_OK) {
+        sb_printf(o, "   not computed: %s\n", dx_status_text(A->unusual_rc));
+    } else if (!A->nunusual_total) {
+        sb_puts(o, "   none\n");
+    } else {
+        text_table t;
+        size_t nc = 6 + (r->nblocks ? 1 : 0);
+        table_init(&t, nc, "rllrrrr");
+        table_row(&t);
+        size_t col = 0;
+        table_cell(&t, col++, "line");
+        table_cell(&t, col++, "%s", p->nfactors == 1 ? "level" : "cell");
+        if (r->nblocks) table_cell(&t, col++, "block");
+        table_cell(&t, col++, "value"); table_cell(&t, col++, "fitted"); table_cell(&t, col++, "residual");
+        table_cell(&t, col++, "t");
+        for (size_t i = 0; i < A->nunusual; i++) {
+            const avow_unusual *u = &A->unusual[i];
+            table_row(&t);
+            col = 0;
+            table_cell(&t, col++, "%llu", (unsigned long long)u->line);
+            table_cell(&t, col++, "%s", plan_cell_name(p, u->cell));
+            if (r->nblocks) table_cell(&t, col++, "%s", r->blocks[u->block].label);
+            table_cell(&t, col++, "%s", u->value_text);
+            fmt_val(a, sizeof a, u->fitted); table_cell(&t, col++, "%s", a);
+            fmt_val(b, sizeof b, u->residual); table_cell(&t, col++, "%s", b);
+            table_cell(&t, col++, "%.2f", u->t);
+        }
+        table_render(&t, 3, o);
+        table_free(&t);
+        if (A->nunusual_total > A->nunusual)
+            sb_printf(o, "   and %zu more\n", A->nunusual_total - A->nunusual);
+        sb_printf(o, "   Verdict: %zu observation%s stand%s out; check %s against the run records before\n"
+                     "   trusting the analysis (never drop a value only because it is unusual).\n",
+                  A->nunusual_total, A->nunusual_total == 1 ? "" : "s", A->nunusual_total == 1 ? "s" : "",
+                  A->nunusual_total == 1 ? "it" : "them");
+    }
+
+    if (A->robust_applies) {
+        sb_printf(o, "\nRobust alternatives to the F test of equal %s means:\n", p->nfactors == 1 ? "level" : "cell");
+        test_line(o, "Welch (each group's own variance)", A->welch_rc, "F", A->welch.stat, A->welch.df1,
+                  A->welch.df2, A->welch.p);
+        test_line(o, "Kruskal-Wallis (ranks, ties corrected)", A->kruskal_rc, "H", A->kruskal.test.stat,
+                  A->kruskal.test.df, NAN, A->kruskal.test.p);
+        if (p->nfactors > 1)
+            sb_puts(o, "   (These compare the cells as one factor: they test whether any cell differs,\n"
+                       "   not each term of the model.)\n");
+        (void)c;
+    } else {
+        sb_puts(o, "\nRobust alternatives: not computed for a study in blocks (they compare groups without\n"
+                   "blocks).\n");
+    }
+}
+
 void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
 {
     char a[64], b[64], c[64];
@@ -380,6 +541,8 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         sb_printf(o, "   %zu cell%s without data; the model still estimates every row.\n",
                   r->empty_cells, r->empty_cells == 1 ? " is" : "s are");
 
+    effect_table(o, p, r);
+
     if (r->ncontrasts) {
         strbuf hh = {0};
         sb_printf(&hh, "Planned contrasts: %zu, %s at alpha %s", r->ncontrasts, method_words(p->adjust),
@@ -407,6 +570,8 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             else if (x->pc->side == SIDE_LESS) sb_printf(o, "below %s", hi);
             else sb_printf(o, "%s to %s", lo, hi);
             sb_printf(o, " (%s)\n", x->ci_simultaneous ? "simultaneous" : "per comparison");
+            if (isfinite(x->std_effect))
+                sb_printf(o, "      standardized effect %.3f (estimate / residual standard deviation)\n", x->std_effect);
             if (isnan(x->p_adj)) {
                 sb_puts(o, "      no test: without residual variation the contrast has no standard error.\n");
                 continue;
@@ -483,6 +648,8 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         for (size_t i = 0; i < r->nexplores; i++)
             sb_printf(o, "   %s = %s\n", r->explores[i].pc->name, r->explores[i].pc->expr);
     }
+
+    checks_section(o, p, r);
 
     heading(o, "Notes");
     if (r->inexact_values)

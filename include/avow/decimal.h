@@ -49,6 +49,10 @@ int dec_cmp(avow_dec a, avow_dec b);
 /* Set out (initialised by the caller) to the exact value of v. */
 void dec_to_mpq(avow_dec v, mpq_t out);
 
+/* Exact decimal text of v into out (size bytes; 96 hold any value): plain digits while
+ * the number needs at most 6 zeros of padding, scientific notation (d.ddde+N) beyond. */
+void dec_format(avow_dec v, char *out, size_t size);
+
 /* The binary64 value nearest to v (ties to even); +-inf beyond the double range. */
 double dec_get_d(avow_dec v);
 

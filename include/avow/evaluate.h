@@ -34,7 +34,18 @@ void eval_sha256_bytes(const void *bytes, size_t len, char *hex);
  * treatment cell within a block), block-major: acc[b * plan->ncells + t]. Without a
  * block there is one "block". Blocks taken from the data are numbered in order of first
  * appearance. */
+/* One observation, kept for the diagnostics (medians, ranks, residuals). */
+typedef struct avow_obs {
+    avow_dec value;         /* exact (the nearest 17-digit decimal for a value that could
+                               not be taken exactly) */
+    uint64_t line;          /* its line in the data file */
+    uint32_t cell;          /* its full cell: block * ncells + treatment cell */
+} avow_obs;
+
 typedef struct avow_data {
+    int keep;               /* keep every observation (set by the caller before reading) */
+    avow_obs *obs;          /* the observations in file order, when keep */
+    size_t nobs, obscap;
     avow_acc *acc;          /* nblocks * ncells accumulators */
     size_t ncells;          /* treatment cells (plan->ncells) */
     size_t nblocks;         /* blocks seen or declared (1 without a block) */

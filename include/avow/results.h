@@ -7,6 +7,7 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "avow/diagnostics.h"
 #include "avow/plan.h"
 
 /* Most line numbers of rows with a missing value listed one by one in the report. */
@@ -59,8 +60,55 @@ typedef struct avow_contrast_result {
     double ci_lo, ci_hi;    /* interval at the study's confidence; +-INFINITY when one-sided */
     int ci_simultaneous;    /* the interval holds for the whole family at once */
     double ss;              /* estimate^2 / sum c_i^2 / n_i */
+    double std_effect;      /* estimate / residual standard deviation */
     int reject;             /* decision at the study's alpha after adjustment */
 } avow_contrast_result;
+
+/* Effect sizes of one row of the ANOVA table (terms and the block). */
+typedef struct avow_effect_result {
+    int ok;                 /* computed (AVOW_OK from dx_effect_sizes_exact) */
+    avow_dx_effect es;      /* eta^2, partial eta^2, omega^2, Cohen's f */
+    int ci_ok;              /* the interval below exists */
+    double f_lo, f_hi;      /* confidence interval for f from the noncentral F (Steiger
+                               2004), at the study's confidence */
+} avow_effect_result;
+
+/* An observation whose externally studentized residual is beyond the limit. */
+typedef struct avow_unusual {
+    uint64_t line;          /* in the data file */
+    size_t cell;            /* treatment cell */
+    size_t block;           /* block (0 without one) */
+    char value_text[96];    /* the value as exact decimal text */
+    double fitted;          /* the model's fitted value */
+    double residual;        /* value - fitted */
+    double t;               /* externally studentized residual */
+} avow_unusual;
+
+/* Most unusual observations listed one by one. */
+#define AVOW_MAX_LISTED_UNUSUAL 20
+
+/* Checks of the assumptions and robust alternatives (computed from the kept values). */
+typedef struct avow_assumptions {
+    int computed;           /* the values were kept (not --no-diagnostics) */
+    size_t ngroups;         /* groups of the spread tests: the treatment cells */
+    int on_residuals;       /* the spread tests use residuals (block or omitted
+                               interactions), not the raw values */
+    int levene_rc, bf_rc, bartlett_rc;      /* AVOW_OK or the reason (dx_status_text) */
+    avow_dx_ftest levene, bf;
+    avow_dx_chisq bartlett;
+    size_t nresid;          /* residuals behind the normality checks */
+    int shapiro_rc, moments_rc;
+    avow_dx_sw shapiro;
+    avow_dx_moments moments;
+    double unusual_limit;   /* |t| beyond which an observation is listed */
+    int unusual_rc;         /* AVOW_OK, or why studentized residuals do not exist */
+    avow_unusual *unusual;  /* the first AVOW_MAX_LISTED_UNUSUAL, by line */
+    size_t nunusual, nunusual_total;
+    int robust_applies;     /* the robust one-way alternatives apply (no block) */
+    int welch_rc, kruskal_rc;
+    avow_dx_ftest welch;
+    avow_dx_kw kruskal;
+} avow_assumptions;
 
 /* One exploratory comparison of two means (all pairs, or a level against the control). */
 typedef struct avow_pair_result {
@@ -139,6 +187,8 @@ typedef struct avow_results {
     double grand_mean;
     avow_anova_row *anova;  /* terms, block, residual, total */
     size_t nanova;
+    avow_effect_result *effects; /* per ANOVA row (terms and block; others not ok) */
+    avow_assumptions checks; /* assumption checks and robust alternatives */
     double r_squared;
     double resid_sd;        /* sqrt of the residual mean square */
     double mse;             /* residual mean square */

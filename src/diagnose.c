@@ -1,0 +1,126 @@
+/* diagnose.c: the assumption checks of `avow run` (analysis.h), built on the numerics of
+ * diagnostics.c. Residuals are exact (the decimal value minus the exact fitted mean)
+ * and rounded once. */
+#include "analysis.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "avow/diagnostics.h"
+
+/* |t| beyond which an observation is listed as unusual: 3, a common screening limit for
+ * externally studentized residuals (common practice, no source). */
+#define UNUSUAL_LIMIT 3.0
+
+/* Groups of values by treatment cell (pooled over blocks); empty cells are left out. */
+typedef struct cell_groups {
+    avow_dec *values;       /* grouped copies */
+    avow_dx_group *groups;  /* the non-empty cells */
+    size_t k;
+} cell_groups;
+
+static void groups_free(cell_groups *g)
+{
+    avow_free(g->values);
+    avow_free(g->groups);
+}
+
+/* Group the observations (or, when resid is not NULL, their residuals as 17-digit
+ * decimals) by treatment cell. */
+static int group_by_cell(const avow_plan *plan, const avow_data *data, const double *resid, cell_groups *g)
+{
+    size_t T = plan->ncells, N = data->nobs;
+    memset(g, 0, sizeof *g);
+    size_t *count = avow_calloc(T + 1, sizeof *count);
+    g->values = avow_calloc(N ? N : 1, sizeof *g->values);
+    g->groups = avow_calloc(T, sizeof *g->groups);
+    if (!count || !g->values || !g->groups) { avow_free(count); groups_free(g); return AVOW_ENOMEM; }
+    for (size_t i = 0; i < N; i++) count[data->obs[i].cell % T + 1]++;
+    for (size_t t = 0; t < T; t++) count[t + 1] += count[t];   /* offsets */
+    size_t *fill = avow_calloc(T, sizeof *fill);
+    if (!fill) { avow_free(count); groups_free(g); return AVOW_ENOMEM; }
+    for (size_t i = 0; i < N; i++) {
+        size_t t = data->obs[i].cell % T;
+        avow_dec v = data->obs[i].value;
+        if (resid && dec_from_double(resid[i], &v) != AVOW_OK) v = (avow_dec){0, 0};
+        g->values[count[t] + fill[t]++] = v;
+    }
+    for (size_t t = 0; t < T; t++)
+        if (fill[t]) g->groups[g->k++] = (avow_dx_group){&g->values[count[t]], fill[t]};
+    avow_free(fill);
+    avow_free(count);
+    return AVOW_OK;
+}
+
+int eval_diagnose(const avow_plan *plan, const avow_data *data, mpq_t *fitted, const double *leverage,
+                  avow_results *res)
+{
+    avow_assumptions *A = &res->checks;
+    size_t N = data->nobs, T = plan->ncells;
+    A->computed = 1;
+    A->on_residuals = res->fit == FIT_GENERAL;
+    A->unusual_limit = UNUSUAL_LIMIT;
+    double dfe = res->anova[res->nanova - 2].df, mse = res->mse;
+    double *e = avow_calloc(N ? N : 1, sizeof *e);
+    A->unusual = avow_calloc(AVOW_MAX_LISTED_UNUSUAL, sizeof *A->unusual);
+    if (!e || !A->unusual) { avow_free(e); return AVOW_ENOMEM; }
+    mpq_t y, r;
+    mpq_init(y); mpq_init(r);
+    for (size_t i = 0; i < N; i++) {
+        dec_to_mpq(data->obs[i].value, y);
+        mpq_sub(r, y, fitted[data->obs[i].cell]);
+        e[i] = dec_mpq_get_d(r);
+    }
+    mpq_clear(y); mpq_clear(r);
+
+    /* Equal spread between the treatment cells. */
+    cell_groups g;
+    int rc = group_by_cell(plan, data, A->on_residuals ? e : NULL, &g);
+    if (rc != AVOW_OK) { avow_free(e); return rc; }
+    A->ngroups = g.k;
+    A->levene_rc = dx_levene(g.groups, g.k, AVOW_DX_MEAN, &A->levene);
+    A->bf_rc = dx_levene(g.groups, g.k, AVOW_DX_MEDIAN, &A->bf);
+    A->bartlett_rc = dx_bartlett(g.groups, g.k, &A->bartlett);
+    groups_free(&g);
+
+    /* Normality of the residuals. */
+    A->nresid = N;
+    A->shapiro_rc = dx_shapiro(e, N, &A->shapiro);
+    A->moments_rc = dx_moments(e, N, &A->moments);
+
+    /* Unusual observations. */
+    A->unusual_rc = AVOW_OK;
+    for (size_t i = 0; i < N; i++) {
+        size_t c = data->obs[i].cell;
+        double h = leverage[c];
+        if (!(h > 0 && h < 1)) continue;    /* a lone observation in its cell: residual 0 */
+        double rs, ts;
+        int src = dx_studentized(e[i], 1.0 / h, mse, dfe, &rs, &ts);
+        if (src == AVOW_EDOM) { A->unusual_rc = AVOW_EDOM; break; }
+        if (src != AVOW_OK || !(fabs(ts) > UNUSUAL_LIMIT)) continue;
+        A->nunusual_total++;
+        if (A->nunusual == AVOW_MAX_LISTED_UNUSUAL) continue;
+        avow_unusual *u = &A->unusual[A->nunusual++];
+        u->line = data->obs[i].line;
+        u->cell = c % T;
+        u->block = c / T;
+        dec_format(data->obs[i].value, u->value_text, sizeof u->value_text);
+        u->fitted = dec_mpq_get_d(fitted[c]);
+        u->residual = e[i];
+        u->t = ts;
+    }
+    if (mse <= 0 || dfe <= 1) A->unusual_rc = AVOW_DX_ENODF;
+
+    /* Robust one-way alternatives over the cells (no block). */
+    A->robust_applies = !plan->block;
+    if (A->robust_applies) {
+        rc = group_by_cell(plan, data, NULL, &g);
+        if (rc != AVOW_OK) { avow_free(e); return rc; }
+        A->welch_rc = dx_welch(g.groups, g.k, &A->welch);
+        A->kruskal_rc = dx_kruskal(g.groups, g.k, &A->kruskal);
+        groups_free(&g);
+    }
+    avow_free(e);
+    return AVOW_OK;
+}
