@@ -1647,7 +1647,14 @@ static void check_family(checker *ck)
     p->family_m = m;
     int64_t nb = p->block ? (int64_t)p->block->nlevels : 1;
     if (p->replicates && nb > 0)
-        for (size_t i = 0; i < p->ncells; i++) p->planned_runs += p->replicates[i] * nb;
+        for (size_t i = 0; i < p->ncells; i++) {
+            int64_t r;
+            if (__builtin_mul_overflow(p->replicates[i], nb, &r)
+                || __builtin_add_overflow(p->planned_runs, r, &p->planned_runs)) {
+                p->planned_runs = INT64_MAX;    /* beyond any real study; nothing computed from it */
+                break;
+            }
+        }
     if (p->adjust == ADJ_SCHEFFE) {
         int64_t q = (int64_t)p->treat_df, params = (int64_t)plan_model_params(p);
         double f;

@@ -38,6 +38,7 @@ struct csv_reader {
     uint64_t mask;                  /* bit i: buf[mbase + i] ends an unquoted run */
     unsigned char delim;            /* field delimiter */
     uint64_t line;                  /* physical line number at pos */
+    uint64_t comments;              /* comment lines skipped before the header row */
     csv_field *fields;              /* field table of the current record */
     size_t fcap;                    /* entries allocated in fields */
     unsigned char stop_unq[256];    /* nonzero: byte ends an unquoted run */
@@ -358,6 +359,53 @@ static int read_record(csv_reader *r, csv_record *rec)
     return 1;
 }
 
+/* Skip the lines before the header row that begin with '#' (comments, such as the
+ * provenance line of a run sheet), counting them as physical lines. Only the bytes up
+ * to the line end are looked at, and pos moves past them as they are seen, so a comment
+ * of any length fits the buffer. Returns AVOW_OK or an error status. */
+static int skip_comments(csv_reader *r)
+{
+    int in_comment = 0;     /* pos is inside a comment line */
+    for (;;) {
+        unsigned char *b = r->buf, *p = b + r->pos, *e = b + r->end;
+        if (!in_comment) {
+            if (p == e) {
+                if (r->eof) return AVOW_OK;
+                int rc = refill(r, 1);
+                if (rc != AVOW_OK) return rc;
+                continue;
+            }
+            if (*p != '#') return AVOW_OK;
+            in_comment = 1;
+            r->comments++;
+        }
+        while (p < e && *p != '\n' && *p != '\r' && *p != 0) p++;
+        r->pos = (size_t)(p - b);
+        if (p == e) {
+            if (r->eof) { r->line++; return AVOW_OK; }     /* a last line without a line end */
+        } else if (*p == 0) {
+            return fail(r, AVOW_ESYNTAX, "NUL byte", r->line, 1);
+        } else if (*p == '\n' || p + 1 < e || r->eof) {
+            r->pos += *p == '\r' && p + 1 < e && p[1] == '\n' ? 2 : 1;
+            r->line++;
+            in_comment = 0;
+            continue;
+        }
+        /* the buffered data end in the comment, or at a CR that an LF may follow */
+        int rc = refill(r, 1);
+        if (rc != AVOW_OK) return rc;
+    }
+}
+
+uint64_t csv_comment_lines(const csv_reader *r) { return r->comments; }
+
+char csv_delimiter_for_path(const char *path)
+{
+    size_t n = strlen(path);
+    if (n >= 4 && (strcmp(path + n - 4, ".tsv") == 0 || strcmp(path + n - 4, ".tab") == 0)) return '\t';
+    return ',';
+}
+
 int csv_read_header(csv_reader *r, csv_record *rec)
 {
     if (r->state == ST_FAILED) return r->err.status;
@@ -373,8 +421,12 @@ int csv_read_header(csv_reader *r, csv_record *rec)
         if (rc != AVOW_OK) return rc;
     }
     if (r->end - r->pos >= 3 && memcmp(r->buf + r->pos, "\xEF\xBB\xBF", 3) == 0) r->pos += 3;
-    int rc = read_record(r, rec);
+    int rc = skip_comments(r);
+    if (rc != AVOW_OK) return rc;
+    rc = read_record(r, rec);
     if (rc < 0) return -rc;
+    if (rc == 0 && r->comments)
+        return fail(r, AVOW_ESYNTAX, "no header row after the comment lines", r->line, 1);
     if (rc == 0) return fail(r, AVOW_ESYNTAX, "empty input: a header row is required", 1, 1);
     if (rec->blank) return fail(r, AVOW_ESYNTAX, "the header row is blank", rec->line, 1);
     for (size_t i = 0; i < rec->nfields; i++) {

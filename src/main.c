@@ -1,6 +1,7 @@
 /* main.c: the avow command. A thin driver over libavow: parses the command line, runs
  * the stages, prints diagnostics and writes output. The only place that prints. */
 #include <errno.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -8,6 +9,7 @@
 #include "avow/evaluate.h"
 #include "avow/plan.h"
 #include "avow/render.h"
+#include "avow/sheet.h"
 #include "avow/syntax.h"
 
 enum { EXIT_STUDY = 1, EXIT_DATA = 2, EXIT_USAGE = 64 };
@@ -19,6 +21,7 @@ static const char usage_text[] =
     "  check STUDY [--format text|json]   review the plan of a study file; reads no data\n"
     "  run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
     "                                     analyse the data and write the report\n"
+    "  sheet STUDY [--seed N] [-o FILE]   lay out the randomized run sheet to fill in\n"
     "  fmt STUDY [-w]                     print the canonical form; -w rewrites the file\n"
     "  help [COMMAND]                     describe a command\n"
     "\n"
@@ -79,6 +82,31 @@ static const char help_run[] =
     "(missing or changed file, unknown level label, non-numeric value, a level without\n"
     "data, too few observations), 64 command-line misuse. On any error no report is written.\n";
 
+static const char help_sheet[] =
+    "usage: avow sheet STUDY [--seed N] [-o FILE]\n"
+    "\n"
+    "Checks the study and lays out its randomized run sheet: every treatment cell (a\n"
+    "combination of the factors' levels) as often as the plan block's `replicates` say;\n"
+    "with a block, the full set in every block, blocks in their declared order and the\n"
+    "order random within each block; without one, a single random order of all runs.\n"
+    "Runs are numbered 1..N. The order comes from GSL's mt19937 generator, seeded with the\n"
+    "seed modulo 2^32, and a Fisher-Yates shuffle: the same study and seed give the same\n"
+    "sheet, byte for byte.\n"
+    "\n"
+    "The sheet is CSV (or the study's delimiter; tab for a .tsv or .tab file name): a\n"
+    "first line beginning with # that records avow's version, the study's SHA-256, the\n"
+    "seed, the generator, the runs and blocks; a header row (run, each factor's data\n"
+    "column, the block's, the response's); one row per run with the level labels and an\n"
+    "empty response. Once the responses are filled in it is the data file `avow run`\n"
+    "reads (it skips lines beginning with # before the header).\n"
+    "\n"
+    "  --seed N   the seed, a whole number from 0 to 18446744073709551615; overrides the\n"
+    "             plan block's `seed`\n"
+    "  -o FILE    write the sheet to FILE atomically instead of standard output\n"
+    "\n"
+    "exit status: 0 done, 1 the study has errors or cannot be laid out (no replicates\n"
+    "planned, a block whose levels come from the data, no seed), 64 command-line misuse.\n";
+
 static int usage_error(const char *fmt, const char *arg)
 {
     fprintf(stderr, "avow: ");
@@ -122,9 +150,26 @@ typedef struct cli_args {
     int json;               /* --format json */
     int write;              /* -w */
     int no_diagnostics;     /* --no-diagnostics */
+    int has_seed;           /* --seed was given */
+    uint64_t seed;          /* --seed N */
 } cli_args;
 
-enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8, OPT_NODIAG = 16 };
+enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8, OPT_NODIAG = 16, OPT_SEED = 32 };
+
+/* A seed as plain decimal digits, 0 to 2^64 - 1. Returns 1 when s is one. */
+static int parse_seed(const char *s, uint64_t *out)
+{
+    uint64_t v = 0;
+    if (!*s) return 0;
+    for (; *s; s++) {
+        if (*s < '0' || *s > '9') return 0;
+        unsigned d = (unsigned)(*s - '0');
+        if (v > (UINT64_MAX - d) / 10) return 0;
+        v = v * 10 + d;
+    }
+    *out = v;
+    return 1;
+}
 
 /* Parse the arguments of command `cmd`, accepting the options in `allowed`.
  * Returns -1 to go on, or the exit status to return (help printed, or misuse). */
@@ -145,6 +190,12 @@ static int parse_args(const char *cmd, int argc, char **argv, int allowed, const
         } else if ((allowed & OPT_OUT) && strcmp(s, "-o") == 0) {
             a->out = i + 1 < argc ? argv[++i] : NULL;
             if (!a->out || !a->out[0]) return usage_error("-o needs a file name%s", "");
+        } else if ((allowed & OPT_SEED) && (strcmp(s, "--seed") == 0 || strncmp(s, "--seed=", 7) == 0)) {
+            const char *v = s[6] == '=' ? s + 7 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!v) return usage_error("--seed needs a value: a whole number from 0 to 18446744073709551615%s", "");
+            if (!parse_seed(v, &a->seed))
+                return usage_error("--seed takes a whole number from 0 to 18446744073709551615, not `%s`", v);
+            a->has_seed = 1;
         } else if ((allowed & OPT_WRITE) && strcmp(s, "-w") == 0) {
             a->write = 1;
         } else if ((allowed & OPT_NODIAG) && strcmp(s, "--no-diagnostics") == 0) {
@@ -320,6 +371,59 @@ done:
     return rc;
 }
 
+static int cmd_sheet(int argc, char **argv)
+{
+    cli_args a;
+    int r = parse_args("sheet", argc, argv, OPT_SEED | OPT_OUT, help_sheet, &a);
+    if (r >= 0) return r;
+    avow_ctx ctx;
+    ast_study study;
+    avow_plan plan;
+    int ok = load_checked(a.path, &ctx, &study, &plan);
+    if (ok < 0) return EXIT_STUDY;
+    if (ok) {
+        size_t first = ctx.ndiags;
+        ok = sheet_check(&ctx, &study, &plan, a.has_seed || plan.has_seed) == 0;
+        if (ctx.oom) { fprintf(stderr, "avow: out of memory\n"); ctx_free(&ctx); return EXIT_STUDY; }
+        strbuf e = {0};
+        for (size_t i = first; i < ctx.ndiags; i++) diag_render_one(&ctx, &ctx.diags[i], &e);
+        if (e.len) fwrite(e.s, 1, e.len, stderr);
+        sb_free(&e);
+    }
+    if (!ok) {
+        fprintf(stderr, "%s: %zu error%s, %zu warning%s; no sheet was written\n", a.path, ctx.nerrors,
+                ctx.nerrors == 1 ? "" : "s", ctx.nwarnings, ctx.nwarnings == 1 ? "" : "s");
+        ctx_free(&ctx);
+        return EXIT_STUDY;
+    }
+    char sha[65];
+    eval_sha256_bytes(ctx.src, ctx.len, sha);
+    avow_sheet sheet;
+    strbuf out = {0};
+    int rc = 0;
+    if (sheet_build(&plan, a.has_seed ? a.seed : plan.seed, &sheet) != AVOW_OK) {
+        fprintf(stderr, "avow: out of memory\n");
+        rc = EXIT_STUDY;
+    } else {
+        sheet_render(&plan, &sheet, sha, sheet_delimiter(&plan, a.out), &out);
+        if (out.failed) {
+            fprintf(stderr, "avow: out of memory\n");
+            rc = EXIT_STUDY;
+        } else if (a.out) {
+            if (avow_write_atomic(a.out, out.s, out.len) != AVOW_OK) {
+                fprintf(stderr, "avow: cannot write %s: %s\n", a.out, strerror(errno));
+                rc = EXIT_STUDY;
+            }
+        } else {
+            write_stdout(&out);
+        }
+    }
+    sheet_free(&sheet);
+    sb_free(&out);
+    ctx_free(&ctx);
+    return rc;
+}
+
 static int cmd_fmt(int argc, char **argv)
 {
     cli_args a;
@@ -364,13 +468,15 @@ int main(int argc, char **argv)
     if (strcmp(cmd, "check") == 0) return cmd_check(argc - 2, argv + 2);
     if (strcmp(cmd, "fmt") == 0) return cmd_fmt(argc - 2, argv + 2);
     if (strcmp(cmd, "run") == 0) return cmd_run(argc - 2, argv + 2);
+    if (strcmp(cmd, "sheet") == 0) return cmd_sheet(argc - 2, argv + 2);
     if (strcmp(cmd, "help") == 0) {
         if (argc < 3) { fputs(usage_text, stdout); return 0; }
         if (strcmp(argv[2], "check") == 0) { fputs(help_check, stdout); return 0; }
         if (strcmp(argv[2], "fmt") == 0) { fputs(help_fmt, stdout); return 0; }
         if (strcmp(argv[2], "run") == 0) { fputs(help_run, stdout); return 0; }
+        if (strcmp(argv[2], "sheet") == 0) { fputs(help_sheet, stdout); return 0; }
         if (strcmp(argv[2], "help") == 0) { fputs(usage_text, stdout); return 0; }
-        return usage_error("help: no command `%s`; the commands are check, run, fmt and help", argv[2]);
+        return usage_error("help: no command `%s`; the commands are check, run, sheet, fmt and help", argv[2]);
     }
-    return usage_error("unknown command `%s`; the commands are check, run, fmt and help", cmd);
+    return usage_error("unknown command `%s`; the commands are check, run, sheet, fmt and help", cmd);
 }

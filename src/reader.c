@@ -349,11 +349,7 @@ static const char *csv_hint(const char *msg)
 
 static char pick_delimiter(const avow_plan *p, const char *path)
 {
-    if (p->delimiter) return p->delimiter;
-    size_t n = strlen(path);
-    if ((n >= 4 && strcmp(path + n - 4, ".tsv") == 0) || (n >= 4 && strcmp(path + n - 4, ".tab") == 0))
-        return '\t';
-    return ',';
+    return p->delimiter ? p->delimiter : csv_delimiter_for_path(path);
 }
 
 /* Column index of name in the header, or -1 (-2 when it appears twice). */
@@ -370,7 +366,8 @@ static long find_column(const csv_record *hdr, const char *name)
 }
 
 /* Report the header's columns when a needed one is missing. */
-static void missing_column(read_state *rs, const csv_record *rec, const char *name, const char *role)
+static void missing_column(read_state *rs, const csv_record *rec, const char *name, const char *role,
+                           uint64_t comments)
 {
     strbuf have = {0};
     for (size_t c = 0; c < rec->nfields && c < 12; c++) {
@@ -387,6 +384,12 @@ static void missing_column(read_state *rs, const csv_record *rec, const char *na
         const char *d = memchr(h, '\t', hl) ? "\\t" : memchr(h, ';', hl) ? ";" : memchr(h, ',', hl) ? "," : NULL;
         if (d) sb_printf(rs->errs, "  hint: the header is one field; add delimiter \"%s\" to the data block\n", d);
     }
+    if (comments == 1 && rs->nerr == 1)
+        sb_puts(rs->errs, "  hint: line 1 begins with # and was skipped as a comment; quote a first column "
+                          "name that begins with #: \"#id\"\n");
+    else if (comments && rs->nerr == 1)
+        sb_printf(rs->errs, "  hint: lines 1 to %llu begin with # and were skipped as comments; quote a first "
+                            "column name that begins with #: \"#id\"\n", (unsigned long long)comments);
 }
 
 size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_data *data,
@@ -436,7 +439,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         if (cols[i] == -2)
             data_error(&rs, rec.line, 1, "the header has two columns named \"%s\" (the %s)", plan->columns[i], what);
         else if (cols[i] < 0)
-            missing_column(&rs, &rec, plan->columns[i], role);
+            missing_column(&rs, &rec, plan->columns[i], role, csv_comment_lines(r));
     }
     if (rs.nerr) goto done;
     size_t ycol = (size_t)cols[ycol_i];

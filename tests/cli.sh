@@ -33,11 +33,17 @@ misuse "--data needs a file name" run "$S" --data
 misuse "-o needs a file name" run "$S" -o
 misuse "fmt: unknown option \`--format\`" fmt "$S" --format json
 misuse "help: no command \`bogus\`" help bogus
+misuse "sheet: which study file?" sheet
+misuse "sheet: unknown option \`--format\`" sheet "$S" --format json
+misuse "--seed takes a whole number" sheet "$S" --seed x
 fine "usage: avow COMMAND" --help
 fine "avow 0.1.0" --version
 fine "usage: avow check" help check
 fine "usage: avow run" help run
 fine "usage: avow fmt" help fmt
+fine "usage: avow sheet" help sheet
+fine "usage: avow sheet" sheet --help
+fine "sheet STUDY [--seed N] [-o FILE]" --help
 fine "usage: avow run" run --help
 echo "command line: $pass passed, $fail failed"
 [ "$fail" -eq 0 ]

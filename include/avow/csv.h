@@ -5,6 +5,10 @@
  * - Records end at LF, CRLF, a lone CR, or the end of the input (a final line needs no
  *   line terminator). Physical lines are counted the same way.
  * - A UTF-8 byte-order mark (EF BB BF) at the very start is skipped.
+ * - Lines that begin with '#' before the header row are comments: they are skipped whole
+ *   (quotes and delimiters in them mean nothing) and counted as physical lines. Only
+ *   there: after the header, a '#' is data. A header whose first name begins with '#'
+ *   must quote it.
  * - The first record is the header row; it is required (csv_read_header) and its names
  *   must be valid UTF-8. Data fields are passed through as bytes.
  * - Fields are separated by one delimiter byte (',' or '\t' or any byte except '"', CR,
@@ -82,10 +86,18 @@ void csv_set_max_record(csv_reader *r, size_t bytes);
 /* Release the reader (NULL is fine). */
 void csv_close(csv_reader *r);
 
-/* Read the header row; must be the first read. Returns AVOW_OK, or an error status
- * (AVOW_ESYNTAX, also for an empty input, a blank first line or invalid UTF-8 in a name;
+/* Read the header row, after any comment lines; must be the first read. Returns
+ * AVOW_OK, or an error status (AVOW_ESYNTAX, also for an empty input, nothing but
+ * comments, a blank header line, a NUL byte in a comment or invalid UTF-8 in a name;
  * AVOW_EIO; AVOW_ENOMEM) with details in csv_error; AVOW_EDOM when called twice. */
 int csv_read_header(csv_reader *r, csv_record *rec);
+
+/* Comment lines skipped before the header row (0 before csv_read_header). */
+uint64_t csv_comment_lines(const csv_reader *r);
+
+/* The delimiter for a data file by its name: tab for names ending in .tsv or .tab,
+ * else ','. */
+char csv_delimiter_for_path(const char *path);
 
 /* Read the next data record: 1 with *rec filled, 0 at the end of the input, or a
  * negative status (-AVOW_ESYNTAX, -AVOW_EIO, -AVOW_ENOMEM) with details in csv_error.

@@ -1,7 +1,7 @@
 /* test_csv.c: the streaming CSV/TSV reader: quoting, line endings, byte-order mark,
  * delimiters, trimming, blank and ragged records, errors with line and column, block
- * boundaries (every small block size, and the 1 MiB default), buffer growth, read errors
- * and allocation failures. */
+ * boundaries (every small block size, and the 1 MiB default), buffer growth, read errors,
+ * allocation failures, and comment lines before the header row. */
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -212,6 +212,78 @@ static void test_trim_blank_ragged(void **state)
     /* valid UTF-8 header names */
     expect_dump("gr\xc3\xb6\xc3\x9f" "e,\xc2\xb5,\xf0\x9f\x93\x8f\n1,2,3\n", ',',
                 "1:gr\\xc3\\xb6\\xc3\\x9fe|\\xc2\\xb5|\\xf0\\x9f\\x93\\x8f\n2:1|2|3\nEOF\n");
+}
+
+/* ---- comment lines before the header ---- */
+
+static void test_comments(void **state)
+{
+    (void)state;
+    /* skipped before the header; line numbers count them */
+    expect_dump("# avow run sheet, seed 1\na,b\n1,2\n", ',', "2:a|b\n3:1|2\nEOF\n");
+    expect_dump("#\n#x\n##\na\n1\n", ',', "4:a\n5:1\nEOF\n");
+    /* every line end: CRLF, lone CR, LF; and a CR at the end of a block */
+    expect_dump("#x\r\n#y\r#z\na,b\r\n1,2", ',', "4:a|b\n5:1|2\nEOF\n");
+    expect_dump("#x\r#y\ra\r1\r", ',', "3:a\n4:1\nEOF\n");
+    /* quotes and delimiters inside a comment mean nothing */
+    expect_dump("# \"unbalanced, \"\"quote\n# a,b,c\nx,y\n1,2\n", ',', "3:x|y\n4:1|2\nEOF\n");
+    /* after a byte-order mark */
+    expect_dump("\xEF\xBB\xBF# c\na\n1\n", ',', "2:a\n3:1\nEOF\n");
+    /* longer than every small block (the buffer does not grow for it) */
+    {
+        strbuf b = {0};
+        sb_putc(&b, '#');
+        sb_pad(&b, 'c', 200);
+        sb_puts(&b, "\r\na\n1\n");
+        assert_false(b.failed);
+        expect_dump(b.s, ',', "2:a\n3:1\nEOF\n");
+        FILE *f = tmp_with(b.s, b.len);
+        csv_reader *r;
+        assert_int_equal(csv_open_fd_bufsize(fileno(f), ',', 8, &r), AVOW_OK);
+        csv_set_max_record(r, 8);
+        char *got = dump_reader(r);
+        assert_string_equal(got, "2:a\n3:1\nEOF\n");
+        assert_int_equal(csv_comment_lines(r), 1);
+        free(got);
+        csv_close(r);
+        fclose(f);
+        sb_free(&b);
+    }
+    /* only before the header: after it, '#' is data */
+    expect_dump("a,b\n#1,2\n# x,y\n", ',', "1:a|b\n2:#1|2\n3:# x|y\nEOF\n");
+    /* only at the start of a line: a space first makes it the header; a quoted name */
+    expect_dump("  # x,b\n1,2\n", ',', "1:# x|b\n2:1|2\nEOF\n");
+    expect_dump("\"#id\",b\n1,2\n", ',', "1:\"#id|b\n2:1|2\nEOF\n");
+    /* a blank line ends the comments: it is then the (blank) header row */
+    expect_dump("# c\n\na\n", ',', "ERR 5 2:1 the header row is blank\n");
+    /* nothing but comments */
+    expect_dump("# a\n# b\n", ',', "ERR 5 3:1 no header row after the comment lines\n");
+    expect_dump("# a", ',', "ERR 5 2:1 no header row after the comment lines\n");
+    /* a NUL byte in a comment is an error, at its line */
+    expect_dump_n("# a\n# b\0\na\n", 11, ',', "ERR 5 2:1 NUL byte\n");
+    /* later errors keep counting the comment lines */
+    expect_dump("# c1\n# c2\na,b\n1,x\"y\n", ',', "3:a|b\nERR 5 4:2 quote inside an unquoted field\n");
+    expect_dump("# c1\r\n# c2\r\nh\n\"x\ny\"\n\"z\n", ',',
+                "3:h\n4:\"x\\ny\nERR 5 6:1 unterminated quoted field\n");
+    /* other delimiters */
+    expect_dump("# seed 7\ta\nx\ty\n1\t2\n", '\t', "2:x|y\n3:1|2\nEOF\n");
+    /* the count */
+    FILE *f = tmp_with("#1\n#2\n#3\na\n", 12);
+    csv_reader *r;
+    csv_record rec;
+    assert_int_equal(csv_open_fd(fileno(f), ',', &r), AVOW_OK);
+    assert_int_equal(csv_comment_lines(r), 0);
+    assert_int_equal(csv_read_header(r, &rec), AVOW_OK);
+    assert_int_equal(rec.line, 4);
+    assert_int_equal(csv_comment_lines(r), 3);
+    csv_close(r);
+    fclose(f);
+    /* the delimiter by file name */
+    assert_int_equal(csv_delimiter_for_path("runs.tsv"), '\t');
+    assert_int_equal(csv_delimiter_for_path("d/runs.tab"), '\t');
+    assert_int_equal(csv_delimiter_for_path("runs.csv"), ',');
+    assert_int_equal(csv_delimiter_for_path("tsv"), ',');
+    assert_int_equal(csv_delimiter_for_path(""), ',');
 }
 
 /* ---- errors ---- */
@@ -552,6 +624,7 @@ int main(void)
         cmocka_unit_test(test_delimiters),
         cmocka_unit_test(test_quoted),
         cmocka_unit_test(test_trim_blank_ragged),
+        cmocka_unit_test(test_comments),
         cmocka_unit_test(test_errors),
         cmocka_unit_test(test_usage_errors),
         cmocka_unit_test(test_read_errors),
