@@ -26,6 +26,7 @@
 
 #include "avow/dist.h"
 #include "avow/exactla.h"
+#include "avow/noncentral.h"
 #include "analysis.h"
 #include "avow/dunnett.h"
 #include "avow/multiplicity.h"
@@ -897,9 +898,20 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
     /* Effect sizes of the terms and the block, from the exact sums of squares. */
     res->effects = avow_calloc(r, sizeof *res->effects);
     if (!res->effects) { xla_free(term_ss, nrows); rc = AVOW_ENOMEM; goto out; }
-    for (size_t i = 0; i + 2 < r; i++)
-        res->effects[i].ok = dx_effect_sizes_exact(term_ss[i], (uint64_t)res->anova[i].df, ssres,
-                                                   (uint64_t)M.dfe, sst, &res->effects[i].es) == AVOW_OK;
+    for (size_t i = 0; i + 2 < r; i++) {
+        avow_effect_result *e = &res->effects[i];
+        e->ok = dx_effect_sizes_exact(term_ss[i], (uint64_t)res->anova[i].df, ssres, (uint64_t)M.dfe, sst,
+                                      &e->es) == AVOW_OK;
+        /* Steiger (2004): invert the noncentral F in lambda at the observed F; f = sqrt(lambda / N). */
+        double lo, hi;
+        if (e->ok && isfinite(res->anova[i].f)
+            && ncdist_f_lambda_ci(res->anova[i].f, res->anova[i].df, M.dfe, 1 - rat_to_double(plan->alpha), &lo,
+                                  &hi) == AVOW_OK) {
+            e->ci_ok = 1;
+            e->f_lo = sqrt(lo / (double)N);
+            e->f_hi = sqrt(hi / (double)N);
+        }
+    }
     xla_free(term_ss, nrows);
     /* Results beyond binary64 cannot be shown; say so rather than print infinities. */
     int finite = isfinite(res->grand_mean);

@@ -1705,6 +1705,7 @@ size_t check_study(avow_ctx *ctx, const ast_study *study, avow_plan *plan)
     check_orthogonality(&ck);
     check_explore(&ck, study);
     check_family(&ck);
+    if (ctx->nerrors == before && !ctx->oom) plan_compute_power(ctx, plan);
     ctx_sort_diags(ctx);
     if (ctx->oom) return ctx->nerrors - before + 1;
     return ctx->nerrors - before;

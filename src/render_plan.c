@@ -146,6 +146,74 @@ static void family_text(const avow_plan *p, strbuf *o)
     if (any) sb_puts(o, ".\n");
 }
 
+/* The power section of the review. */
+static void power_text(const avow_plan *p, strbuf *o)
+{
+    const plan_power *pw = &p->powers;
+    if (!p->has_sigma || !p->has_detect) return;
+    heading(o, "Power and replicates");
+    if (!pw->computed) {
+        if (pw->why_not) sb_printf(o, "   Not computed: %s.\n", pw->why_not);
+        return;
+    }
+    sb_printf(o, "   To find a difference of %s between two means when runs scatter with standard\n"
+                 "   deviation %s, at alpha %s:\n", p->detect_text, p->sigma_text, p->alpha_text);
+    text_table t;
+    int planned = pw->at_planned, needed = pw->has_target && pw->needed > 0;
+    size_t nc = 2 + (size_t)planned + (size_t)needed;
+    table_init(&t, nc, "llrr");
+    table_row(&t);
+    size_t col = 0;
+    table_cell(&t, col++, "test");
+    table_cell(&t, col++, "how");
+    if (planned) table_cell(&t, col++, "power, planned");
+    if (needed) table_cell(&t, col++, "power at %lld per cell", (long long)pw->needed);
+    for (size_t i = 0; i < pw->nterms; i++) {
+        const plan_power_term *x = &pw->terms[i];
+        table_row(&t);
+        col = 0;
+        table_cell(&t, col++, "F: %s", x->name);
+        table_cell(&t, col++, "two means %s apart, the others between", p->detect_text);
+        if (planned) table_cell(&t, col++, "%.3f", x->power);
+        if (needed) table_cell(&t, col++, "%.3f", x->power_needed);
+    }
+    for (size_t i = 0; i < pw->ncontrasts; i++) {
+        const plan_power_contrast *x = &pw->contrasts[i];
+        table_row(&t);
+        col = 0;
+        table_cell(&t, col++, "contrast %s", x->pc->name);
+        if (p->adjust == ADJ_SCHEFFE)
+            table_cell(&t, col++, "%s, Scheffe's critical |t|", x->sides == 2 ? "two-sided" : "one-sided");
+        else
+            table_cell(&t, col++, "%s at %.4g%s", x->sides == 2 ? "two-sided" : "one-sided", x->level,
+                       (p->adjust == ADJ_HOLM || p->adjust == ADJ_FDR) && pw->ncontrasts > 1 ? " (first step)" : "");
+        if (planned) table_cell(&t, col++, "%.3f", x->power);
+        if (needed) table_cell(&t, col++, "%.3f", x->power_needed);
+    }
+    table_render(&t, 3, o);
+    table_free(&t);
+    if (planned)
+        sb_printf(o, "   Planned: %lld runs, %.0f residual degrees of freedom.\n", (long long)p->planned_runs, pw->df2);
+    if (pw->has_target) {
+        if (needed)
+            sb_printf(o, "   Target power %s: %lld replicate%s per cell%s (%lld runs, %.0f residual df) is the\n"
+                         "   smallest equal number that reaches it for every test above.\n",
+                      p->power_text, (long long)pw->needed, pw->needed == 1 ? "" : "s",
+                      p->block ? " in each block" : "", (long long)pw->needed_runs, pw->needed_df2);
+        else
+            sb_printf(o, "   Target power %s: not reached with up to 1,000,000 replicates per cell.\n", p->power_text);
+        if (planned && needed) {
+            int short_of = 0;
+            for (size_t i = 0; i < pw->nterms; i++) short_of |= pw->terms[i].power < pw->target;
+            for (size_t i = 0; i < pw->ncontrasts; i++) short_of |= pw->contrasts[i].power < pw->target;
+            sb_puts(o, short_of ? "   The planned replicates fall short of the target for at least one test.\n"
+                                : "   The planned replicates reach the target for every test.\n");
+        }
+    }
+    if (p->nfactors > 1)
+        sb_puts(o, "   F tests are for main effects with no interaction; contrasts are on cell means.\n");
+}
+
 void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
 {
     sb_printf(o, "avow %s -- plan review (no data read)\n\n", AVOW_VERSION);
@@ -358,6 +426,8 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
         table_free(&t);
     }
 
+    power_text(p, o);
+
     heading(o, "Findings");
     sb_printf(o, "   %zu error%s, %zu warning%s\n", ctx->nerrors, ctx->nerrors == 1 ? "" : "s",
               ctx->nwarnings, ctx->nwarnings == 1 ? "" : "s");
@@ -370,6 +440,68 @@ void render_plan_text(const avow_ctx *ctx, const avow_plan *p, strbuf *o)
 }
 
 /* ---- JSON ---- */
+
+static void json_maybe(strbuf *o, double v)
+{
+    if (isfinite(v)) json_number(o, v); else sb_puts(o, "null");
+}
+
+/* The power object of avow.plan/1: inputs and every figure. */
+static void power_json(const avow_plan *p, strbuf *o)
+{
+    const plan_power *pw = &p->powers;
+    if (!p->has_sigma || !p->has_detect) { sb_puts(o, "null"); return; }
+    if (!pw->computed) {
+        sb_puts(o, "{\"computed\": false, \"reason\": ");
+        json_string(o, pw->why_not);
+        sb_putc(o, '}');
+        return;
+    }
+    sb_puts(o, "{\"computed\": true, \"alpha\": "); json_number(o, rat_to_double(p->alpha));
+    sb_puts(o, ", \"sigma\": "); json_number(o, rat_to_double(p->sigma));
+    sb_puts(o, ", \"detect\": "); json_number(o, rat_to_double(p->detect));
+    sb_puts(o, ", \"target\": "); json_maybe(o, pw->has_target ? pw->target : NAN);
+    sb_puts(o, ",\n    \"planned\": ");
+    if (pw->at_planned) {
+        sb_printf(o, "{\"runs\": %lld, \"df_residual\": ", (long long)p->planned_runs);
+        json_number(o, pw->df2);
+        sb_putc(o, '}');
+    } else sb_puts(o, "null");
+    sb_puts(o, ",\n    \"needed\": ");
+    if (pw->has_target && pw->needed > 0) {
+        sb_printf(o, "{\"replicates_per_cell\": %lld, \"runs\": %lld, \"df_residual\": ",
+                  (long long)pw->needed, (long long)pw->needed_runs);
+        json_number(o, pw->needed_df2);
+        sb_putc(o, '}');
+    } else sb_puts(o, "null");
+    sb_puts(o, ",\n    \"f_tests\": [");
+    for (size_t i = 0; i < pw->nterms; i++) {
+        const plan_power_term *x = &pw->terms[i];
+        sb_puts(o, i ? ",\n      {\"factor\": " : "\n      {\"factor\": ");
+        json_string(o, x->name);
+        sb_puts(o, ", \"df1\": "); json_number(o, x->df1);
+        sb_puts(o, ", \"lambda\": "); json_maybe(o, pw->at_planned ? x->lambda : NAN);
+        sb_puts(o, ", \"power\": "); json_maybe(o, pw->at_planned ? x->power : NAN);
+        sb_puts(o, ", \"power_at_needed\": "); json_maybe(o, pw->has_target && pw->needed ? x->power_needed : NAN);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, pw->nterms ? "],\n    \"contrasts\": [" : "], \"contrasts\": [");
+    for (size_t i = 0; i < pw->ncontrasts; i++) {
+        const plan_power_contrast *x = &pw->contrasts[i];
+        sb_puts(o, i ? ",\n      {\"name\": " : "\n      {\"name\": ");
+        json_string(o, x->pc->name);
+        sb_printf(o, ", \"sides\": %d, \"level\": ", x->sides);
+        json_maybe(o, x->level);
+        sb_printf(o, ", \"level_is_first_step\": %s",
+                  (p->adjust == ADJ_HOLM || p->adjust == ADJ_FDR) && pw->ncontrasts > 1 ? "true" : "false");
+        sb_puts(o, ", \"scheffe_critical_t\": "); json_maybe(o, pw->at_planned ? x->crit : NAN);
+        sb_puts(o, ", \"delta\": "); json_maybe(o, pw->at_planned ? x->delta : NAN);
+        sb_puts(o, ", \"power\": "); json_maybe(o, pw->at_planned ? x->power : NAN);
+        sb_puts(o, ", \"power_at_needed\": "); json_maybe(o, pw->has_target && pw->needed ? x->power_needed : NAN);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, pw->ncontrasts ? "]}" : "]}");
+}
 
 void json_string(strbuf *o, const char *s)
 {
@@ -609,5 +741,7 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *p, int ok, strbuf *o
         if (p->has_seed) sb_printf(o, "%llu", (unsigned long long)p->seed); else sb_puts(o, "null");
         sb_putc(o, '}');
     } else sb_puts(o, "null");
+    sb_puts(o, ",\n  \"power\": ");
+    power_json(p, o);
     sb_puts(o, "\n}\n");
 }

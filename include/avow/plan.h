@@ -68,6 +68,46 @@ typedef struct plan_contrast {
     avow_span span;         /* the statement */
 } plan_contrast;
 
+/* Power of one F test of the model at the planned replicates (a main effect, at its
+ * least favourable configuration). */
+typedef struct plan_power_term {
+    const char *name;       /* the factor */
+    double df1;             /* its degrees of freedom */
+    double lambda;          /* noncentrality at the least favourable configuration */
+    double power;           /* at the planned replicates */
+    double power_needed;    /* at the replicates needed (when a target power is given) */
+} plan_power_term;
+
+/* Power of one planned contrast's test. */
+typedef struct plan_power_contrast {
+    const plan_contrast *pc;
+    int sides;              /* 1: one-sided in the declared direction; 2: two-sided */
+    double level;           /* the per-test level the adjustment implies (NaN for Scheffe) */
+    double crit;            /* Scheffe: the critical |t| (else NaN) */
+    double delta;           /* noncentrality detect / (sigma sqrt(sum c^2/n)), c scaled so
+                               that its positive coefficients sum to 1 */
+    double power;
+    double power_needed;
+} plan_power_contrast;
+
+/* The power figures of `avow check` (plan block with sigma and detect). */
+typedef struct plan_power {
+    int computed;           /* the figures below exist */
+    const char *why_not;    /* else why not (NULL when sigma or detect is absent) */
+    int at_planned;         /* figures at the planned replicates exist */
+    double df2;             /* residual df at the planned replicates */
+    plan_power_term *terms; /* one per treatment factor */
+    size_t nterms;
+    plan_power_contrast *contrasts; /* one per valid planned contrast */
+    size_t ncontrasts;
+    int has_target;         /* `power P` was given */
+    double target;
+    int64_t needed;         /* smallest equal replicates per cell reaching the target for
+                               every F test and contrast; 0 when beyond the search */
+    int64_t needed_runs;    /* runs at that number */
+    double needed_df2;
+} plan_power;
+
 typedef struct avow_plan {
     const char *path;           /* the study file */
     const char *title;          /* study title */
@@ -122,7 +162,17 @@ typedef struct avow_plan {
                                    none, bonferroni and sidak; NULL for scheffe) */
     int64_t planned_runs;       /* total planned runs, 0 when no replicates are planned */
     double scheffe_crit;        /* critical |t| of Scheffe's rule when runs are planned, else 0 */
+
+    plan_power powers;          /* power and replicates needed (src/power.c) */
 } avow_plan;
+
+/* Work out plan->powers from the plan block (called by check_study when the plan has no
+ * errors): the power of each main effect's F test at its least favourable configuration
+ * (two level means `detect` apart, the others at their midpoint) and of each planned
+ * contrast's t test, from the noncentral F and t distributions (noncentral.h), at the
+ * planned replicates, and with `power P` the smallest equal number of replicates per
+ * cell that reaches P for all of them. Memory comes from the context's arena. */
+void plan_compute_power(avow_ctx *ctx, avow_plan *plan);
 
 /* Check a parsed study: resolve names, reduce contrasts, check orthogonality and every
  * rule of the language. Diagnostics go to ctx; the plan is filled as far as possible.

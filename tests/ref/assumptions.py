@@ -17,7 +17,8 @@ References, each named beside its checks:
   - Externally studentized residuals from numpy 1.24.2 least squares (Debian
     python3-numpy): leverages from the hat matrix of the cell-means or block model,
     t_i = e_i / sqrt(MSE_(i) (1 - h_i)) with the leave-one-out mean square.
-  - methods.md check values (section 6 and 8) on the NIST/SEMATECH e-Handbook one-way
+  - methods.md check values (sections 6 and 8, including the Steiger 2004 interval
+    for Cohen's f from the noncentral F) on the NIST/SEMATECH e-Handbook one-way
     data (tests/golden/handbook): LV-mean-nist, LV-median-nist, BA-nist, WE-nist,
     KW-nist, ES-nist.
 Tolerances: relative 1e-12 for statistics and p-values where SciPy's double arithmetic
@@ -245,6 +246,9 @@ e = js["effect_sizes"]["terms"][0]
 rel(e["eta_squared"], 20923 / 34012, 1e-15, "methods.md ES-nist: eta2")
 rel(e["omega_squared"], 74966 / 140411, 1e-15, "methods.md ES-nist: omega2")
 rel(e["cohen_f"], 1.2643250529065442, 1e-15, "methods.md ES-nist: f")
+# Steiger (2004) interval for f at 95%: methods.md ES-nist (SciPy ncf inverted, checked with mpmath)
+rel(e["cohen_f_ci"][0], 0.38156590753253994, 1e-10, "methods.md ES-nist: f 95% lower")
+rel(e["cohen_f_ci"][1], 1.7720208495876562, 1e-10, "methods.md ES-nist: f 95% upper")
 print("methods.md check values: compared")
 
 # 5. --no-diagnostics: nothing computed, nothing else changed
