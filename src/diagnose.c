@@ -53,6 +53,79 @@ static int group_by_cell(const avow_plan *plan, const avow_data *data, const dou
     return AVOW_OK;
 }
 
+/* Residuals e_i = y_i - fitted(cell of i), each the exact difference rounded (to within a
+ * few units in the last place). Fast path per cell: with S the most decimals of the
+ * cell's values (at most 20, and 10^S exact in binary64), y 10^S is an integer and
+ * fitted 10^S = F + f, F an integer and 0 <= f < 1, so e = ((y 10^S - F) - f) / 10^S with
+ * an exact integer difference and three roundings. Otherwise exact rationals. */
+static int residuals(const avow_data *data, mpq_t *fitted, double *e)
+{
+    size_t N = data->nobs, C = data->ncells * data->nblocks;
+    int32_t *minexp = avow_calloc(C ? C : 1, sizeof *minexp);
+    avow_i128 *Fi = avow_calloc(C ? C : 1, sizeof *Fi);
+    double *Ff = avow_calloc(C ? C : 1, sizeof *Ff);
+    signed char *fast = avow_calloc(C ? C : 1, 1);
+    if (!minexp || !Fi || !Ff || !fast) {
+        avow_free(minexp); avow_free(Fi); avow_free(Ff); avow_free(fast);
+        return AVOW_ENOMEM;
+    }
+    for (size_t c = 0; c < C; c++) minexp[c] = 0;
+    for (size_t i = 0; i < N; i++) {
+        const avow_obs *o = &data->obs[i];
+        if (o->value.sig && o->value.exp < minexp[o->cell]) minexp[o->cell] = o->value.exp;
+    }
+    mpq_t q, y, r;
+    mpz_t fl, lim;
+    mpq_init(q); mpq_init(y); mpq_init(r);
+    mpz_init(fl); mpz_init(lim);
+    mpz_ui_pow_ui(lim, 2, 100);
+    for (size_t c = 0; c < C; c++) {
+        int32_t S = -minexp[c];
+        if (S > 20) continue;
+        mpz_ui_pow_ui(mpq_numref(q), 10, (unsigned long)S);
+        mpz_set_ui(mpq_denref(q), 1);
+        mpq_mul(q, q, fitted[c]);                   /* fitted 10^S */
+        mpz_fdiv_q(fl, mpq_numref(q), mpq_denref(q));
+        if (mpz_cmpabs(fl, lim) >= 0) continue;
+        mpq_set_z(r, fl);
+        mpq_sub(r, q, r);                           /* the fraction, in [0, 1) */
+        Ff[c] = mpq_get_d(r);
+        /* F as a 128-bit integer (|F| < 2^100) */
+        int neg = mpz_sgn(fl) < 0;
+        mpz_abs(fl, fl);
+        avow_i128 v = 0;
+        for (int w = 0; w < 4; w++) {
+            unsigned long part = mpz_getlimbn(fl, 0) & 0xffffffffUL;
+            v |= (avow_i128)part << (32 * w);
+            mpz_fdiv_q_2exp(fl, fl, 32);
+        }
+        Fi[c] = neg ? -v : v;
+        fast[c] = 1;
+    }
+    static const double P10[21] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
+                                   1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20};
+    for (size_t i = 0; i < N; i++) {
+        const avow_obs *o = &data->obs[i];
+        size_t c = o->cell;
+        int32_t S = -minexp[c], k = o->value.exp + S;     /* 0 <= k */
+        if (fast[c] && k <= 20) {
+            avow_i128 x = (avow_i128)o->value.sig;
+            avow_i128 p = 1;
+            for (int32_t j = 0; j < k; j++) p *= 10;
+            x *= p;                                     /* |x| < 10^38 */
+            e[i] = ((double)(x - Fi[c]) - Ff[c]) / P10[S];
+            continue;
+        }
+        dec_to_mpq(o->value, y);
+        mpq_sub(r, y, fitted[c]);
+        e[i] = dec_mpq_get_d(r);
+    }
+    mpq_clear(q); mpq_clear(y); mpq_clear(r);
+    mpz_clear(fl); mpz_clear(lim);
+    avow_free(minexp); avow_free(Fi); avow_free(Ff); avow_free(fast);
+    return AVOW_OK;
+}
+
 int eval_diagnose(const avow_plan *plan, const avow_data *data, mpq_t *fitted, const double *leverage,
                   avow_results *res)
 {
@@ -65,18 +138,12 @@ int eval_diagnose(const avow_plan *plan, const avow_data *data, mpq_t *fitted, c
     double *e = avow_calloc(N ? N : 1, sizeof *e);
     A->unusual = avow_calloc(AVOW_MAX_LISTED_UNUSUAL, sizeof *A->unusual);
     if (!e || !A->unusual) { avow_free(e); return AVOW_ENOMEM; }
-    mpq_t y, r;
-    mpq_init(y); mpq_init(r);
-    for (size_t i = 0; i < N; i++) {
-        dec_to_mpq(data->obs[i].value, y);
-        mpq_sub(r, y, fitted[data->obs[i].cell]);
-        e[i] = dec_mpq_get_d(r);
-    }
-    mpq_clear(y); mpq_clear(r);
+    int rc = residuals(data, fitted, e);
+    if (rc != AVOW_OK) { avow_free(e); return rc; }
 
     /* Equal spread between the treatment cells. */
     cell_groups g;
-    int rc = group_by_cell(plan, data, A->on_residuals ? e : NULL, &g);
+    rc = group_by_cell(plan, data, A->on_residuals ? e : NULL, &g);
     if (rc != AVOW_OK) { avow_free(e); return rc; }
     A->ngroups = g.k;
     A->levene_rc = dx_levene(g.groups, g.k, AVOW_DX_MEAN, &A->levene);

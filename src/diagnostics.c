@@ -208,10 +208,31 @@ static void scale_mpz(mpz_t out, avow_dec v, int32_t emin)
     if (v.sig < 0) mpz_neg(out, out);
 }
 
-static int cmp_i64(const void *a, const void *b)
+/* The k-th smallest of y[0..n) moved to y[k], smaller ones before it and larger ones
+ * after (Hoare's selection, "FIND", 1961, with a median-of-three pivot): linear time on
+ * average, so a median needs no full sort. */
+static void select_i64(int64_t *y, size_t n, size_t k)
 {
-    int64_t x = *(const int64_t *)a, y = *(const int64_t *)b;
-    return (x > y) - (x < y);
+    size_t lo = 0, hi = n - 1;
+    while (hi > lo) {
+        size_t mid = lo + (hi - lo) / 2;
+        int64_t a = y[lo], b = y[mid], c = y[hi];
+        int64_t pivot = a < b ? (b < c ? b : a < c ? c : a) : (a < c ? a : b < c ? c : b);
+        size_t i = lo, j = hi;
+        while (i <= j) {
+            while (y[i] < pivot) i++;
+            while (y[j] > pivot) j--;
+            if (i <= j) {
+                int64_t t = y[i]; y[i] = y[j]; y[j] = t;
+                i++;
+                if (j == 0) break;
+                j--;
+            }
+        }
+        if (k <= j) hi = j;
+        else if (k >= i) lo = i;
+        else return;
+    }
 }
 
 static int cmp_dec(const void *a, const void *b)
@@ -269,9 +290,17 @@ static void lev_group_fast(const avow_dx_group *g, int32_t emin, avow_dx_centre 
         dd = (i128)n;
         c = s;
     } else {
-        qsort(y, n, sizeof *y, cmp_i64);
+        /* the two middle values: select the upper one; the lower one is the largest of
+         * the values before it when n is even */
+        size_t up = n / 2;
+        select_i64(y, n, up);
+        int64_t hi_mid = y[up], lo_mid = hi_mid;
+        if (n % 2 == 0) {
+            lo_mid = y[0];
+            for (size_t j = 1; j < up; j++) if (y[j] > lo_mid) lo_mid = y[j];
+        }
         dd = 2;
-        c = (i128)y[(n - 1) / 2] + y[n / 2];
+        c = (i128)lo_mid + hi_mid;
     }
     /* |dd y - c| < 2^32 2^60 + 2^92 = 2^93 */
     u128 sa = 0;
@@ -733,7 +762,49 @@ int dx_kruskal(const avow_dx_group *groups, size_t k, avow_dx_kw *out)
             it[m].g = i;
             m++;
         }
-    qsort(it, N, sizeof *it, cmp_kw);
+    dx_scale sc;
+    st = scale_find(groups, k, &sc);
+    if (st) { avow_free(it); avow_free(r2); return st; }
+    int sorted = 0;
+    if (sc.fast && N > 64) {
+        /* Every value is an exact integer number of units 10^emin below 10^18: sort those
+         * integers by a stable least-significant-digit radix sort, bytewise (Seward's
+         * counting passes; Knuth, TAOCP vol. 3, 5.2.5), much faster than comparisons. */
+        uint64_t *key = avow_malloc(2 * N * sizeof *key);
+        uint32_t *grp = avow_malloc(2 * N * sizeof *grp);
+        if (key && grp) {
+            for (size_t j = 0; j < N; j++) {
+                key[j] = (uint64_t)scale_i64(it[j].v, sc.emin) ^ (UINT64_C(1) << 63);
+                grp[j] = (uint32_t)j;
+            }
+            uint64_t *ka = key, *kb = key + N;
+            uint32_t *ga = grp, *gb = grp + N;
+            for (int byte = 0; byte < 8; byte++) {
+                size_t count[257] = {0};
+                int sh = 8 * byte;
+                for (size_t j = 0; j < N; j++) count[((ka[j] >> sh) & 255) + 1]++;
+                if (count[((ka[0] >> sh) & 255) + 1] == N) continue;   /* one value of this byte */
+                for (int b = 0; b < 256; b++) count[b + 1] += count[b];
+                for (size_t j = 0; j < N; j++) {
+                    size_t at = count[(ka[j] >> sh) & 255]++;
+                    kb[at] = ka[j];
+                    gb[at] = ga[j];
+                }
+                uint64_t *tk = ka; ka = kb; kb = tk;
+                uint32_t *tg = ga; ga = gb; gb = tg;
+            }
+            kw_item *sorted_it = avow_malloc(N * sizeof *sorted_it);
+            if (sorted_it) {
+                for (size_t j = 0; j < N; j++) sorted_it[j] = it[ga[j]];
+                avow_free(it);
+                it = sorted_it;
+                sorted = 1;
+            }
+        }
+        avow_free(key);
+        avow_free(grp);
+    }
+    if (!sorted) qsort(it, N, sizeof *it, cmp_kw);
     u128 ties = 0;                              /* sum t^3 - t */
     for (size_t p = 0; p < N;) {
         size_t q = p + 1;
