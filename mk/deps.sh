@@ -3,7 +3,7 @@
 # Installs what is missing with apt-get when run as root; otherwise prints the exact
 # command and stops.
 set -u
-packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy make gcc"
+packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy python3-mpmath make gcc"
 missing=""
 for pkg in $packages; do
     status=$(dpkg-query -W -f='${Status}' "$pkg" 2>/dev/null)

@@ -39,12 +39,15 @@
  *     25 us at lambda = 1e4 and 250 us at lambda = 1e6 (the number of terms grows like
  *     sqrt(lambda)); the noncentral t about twice that at lambda = delta^2. The small
  *     tail of the noncentral t when t and delta have opposite signs is a quadrature:
- *     10-25 us on average, at most about 0.4 ms (nu from 1e-3 to 1e4).
+ *     10-25 us on average, at most about 0.4 ms (nu from 1e-3 to 1e4). The slowest call
+ *     seen in 120,000 random ones (df from 1e-3 to 1e7, any lambda and delta in range)
+ *     took 8 ms, at |delta| near 800.
  *   - The first call of any function here turns GSL's abort-on-error handler off
  *     (gsl_set_error_handler_off) for the whole process, as dist.h does; GSL failures
  *     show up as NaN, never as an abort. Make the first call before starting threads.
  *     After that every function is safe to call from several threads at once.
- *   - No function here prints or allocates. */
+ *   - No function here prints or allocates (the quadrature keeps its panel stack, about
+ *     7 KB, on the C stack). */
 #ifndef AVOW_NONCENTRAL_H
 #define AVOW_NONCENTRAL_H
 
@@ -110,8 +113,8 @@ double ncdist_t_power(double alpha, double nu, double delta, int sides);
 
 /* Smallest number n >= 2 of observations per group for which the one-way ANOVA F test
  * with k equal groups (d1 = k - 1, d2 = k (n - 1), lambda = k n f^2, Cohen's f) reaches
- * at least the power `target` at level alpha. k is an integer >= 2 (as a double), f > 0
- * finite, alpha and target in (0, 1). Power increases with n; the search doubles n and
+ * at least the power `target` at level alpha. k is an integer from 2 to 1e6 (as a
+ * double), f > 0 finite, alpha and target in (0, 1). Power increases with n; the search doubles n and
  * then bisects. Returns 0 and sets *n; AVOW_EDOM for invalid arguments or a failed
  * tail (*n unchanged); AVOW_EOVERFLOW when no n with lambda <= NCDIST_LAMBDA_MAX and
  * n <= 1e9 reaches the target (*n unchanged). */
