@@ -576,7 +576,45 @@ out:
 /* ---- contrasts ---- */
 
 /* Fill estimate, se, t, ss and the unadjusted p of one contrast. */
-static void contrast_basic(const model *M, const plan_contrast *pc, avow_contrast_result *out)
+/* Under `variances separate` (cell-means fits): the standard error from each cell's own
+ * variance, SE^2 = sum c_t^2 s_t^2 / n_t, and Welch-Satterthwaite degrees of freedom
+ * (Satterthwaite 1946; Welch 1947), df = (sum w_t)^2 / sum w_t^2 / (n_t - 1), w_t =
+ * c_t^2 s_t^2 / n_t, all exact and rounded once. NaN when a cell with a non-zero
+ * coefficient has fewer than 2 runs. */
+static void separate_se(const model *M, mpq_t *c, double *se, double *df)
+{
+    mpq_t w, sw, sw2, q, n1;
+    mpq_init(w); mpq_init(sw); mpq_init(sw2); mpq_init(q); mpq_init(n1);
+    int ok = 1;
+    for (size_t i = 0; i < M->T && ok; i++) {
+        if (mpq_sgn(c[i]) == 0) continue;
+        uint64_t n = M->tn[i];
+        if (n < 2) { ok = 0; break; }
+        dec_acc_ss(&M->data->acc[i], q);            /* one block: the cell itself */
+        mpq_set_ui(n1, (unsigned long)(n - 1), 1);
+        mpq_div(q, q, n1);                          /* s^2 */
+        mpq_mul(w, c[i], c[i]);
+        mpq_mul(w, w, q);
+        mpq_set_ui(n1, (unsigned long)n, 1);
+        mpq_div(w, w, n1);                          /* c^2 s^2 / n */
+        mpq_add(sw, sw, w);
+        mpq_mul(w, w, w);
+        mpq_set_ui(n1, (unsigned long)(n - 1), 1);
+        mpq_div(w, w, n1);
+        mpq_add(sw2, sw2, w);
+    }
+    if (ok && mpq_sgn(sw2) > 0) {
+        *se = sqrt(dec_mpq_get_d(sw));
+        mpq_mul(q, sw, sw);
+        mpq_div(q, q, sw2);
+        *df = dec_mpq_get_d(q);
+    } else {
+        *se = *df = NAN;
+    }
+    mpq_clear(w); mpq_clear(sw); mpq_clear(sw2); mpq_clear(q); mpq_clear(n1);
+}
+
+static void contrast_basic(const model *M, const plan_contrast *pc, int separate, avow_contrast_result *out)
 {
     mpq_t *c = xla_alloc(M->T);
     mpq_t L, v, t;
@@ -589,6 +627,7 @@ static void contrast_basic(const model *M, const plan_contrast *pc, avow_contras
     out->estimate = dec_mpq_get_d(L);
     mpq_mul(t, M->mse, v);              /* SE^2 = MSE * v, exactly */
     out->se = sqrt(dec_mpq_get_d(t));
+    if (separate) separate_se(M, c, &out->se, &out->df);
     if (mpq_sgn(v) > 0) {
         mpq_mul(t, L, L);
         mpq_div(t, t, v);               /* SS = L^2 / v, exactly */
@@ -598,9 +637,9 @@ static void contrast_basic(const model *M, const plan_contrast *pc, avow_contras
     }
     out->t = out->se > 0 ? out->estimate / out->se : NAN;
     switch (pc->side) {
-    case SIDE_GREATER: out->p = dist_t_q(out->t, M->dfe); break;
-    case SIDE_LESS: out->p = dist_t_q(-out->t, M->dfe); break;
-    default: out->p = dist_t_p2(out->t, M->dfe); break;
+    case SIDE_GREATER: out->p = dist_t_q(out->t, out->df); break;
+    case SIDE_LESS: out->p = dist_t_q(-out->t, out->df); break;
+    default: out->p = dist_t_p2(out->t, out->df); break;
     }
 out:
     xla_free(c, M->T);
@@ -994,7 +1033,7 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
     if (!res->contrasts || !res->explores || !p || !padj) { rc = AVOW_ENOMEM; goto out; }
     for (size_t i = 0, j = 0; i < plan->ncontrasts; i++) {
         if (!plan->contrasts[i].valid) continue;
-        contrast_basic(&M, &plan->contrasts[i], &res->contrasts[j]);
+        contrast_basic(&M, &plan->contrasts[i], plan->separate_variances && M.fit != FIT_GENERAL, &res->contrasts[j]);
         res->contrasts[j].std_effect = res->resid_sd > 0 ? res->contrasts[j].estimate / res->resid_sd : NAN;
         p[j] = res->contrasts[j].p;
         j++;
@@ -1011,7 +1050,7 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
             for (size_t j = 0; j < m; j++) {
                 avow_contrast_result *cr = &res->contrasts[j];
                 int wrong_way = (cr->pc->side == SIDE_GREATER && cr->t < 0) || (cr->pc->side == SIDE_LESS && cr->t > 0);
-                padj[j] = wrong_way ? 1 : dist_f_q(cr->t * cr->t / qdf, qdf, dfe);
+                padj[j] = wrong_way ? 1 : dist_f_q(cr->t * cr->t / qdf, qdf, cr->df);
             }
         } else if (ok_p) {
             mult_adjust_p(plan->adjust, p, m, padj);
@@ -1026,25 +1065,26 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
             double crit;
             switch (plan->adjust) {
             case ADJ_BONFERRONI:
-                crit = tq(one ? alpha / (double)m : alpha / (2.0 * (double)m), dfe);
+                crit = tq(one ? alpha / (double)m : alpha / (2.0 * (double)m), cr->df);
                 cr->ci_simultaneous = 1;
                 break;
             case ADJ_SIDAK: {
                 double a1 = mult_sidak_alpha(alpha, m);
-                crit = tq(one ? a1 : a1 / 2, dfe);
+                crit = tq(one ? a1 : a1 / 2, cr->df);
                 cr->ci_simultaneous = 1;
                 break;
             }
             case ADJ_SCHEFFE:
-                crit = res->scheffe_crit;
+                crit = cr->df == dfe ? res->scheffe_crit
+                       : (dist_f_qinv(alpha, qdf, cr->df, &fcrit) == 0 ? sqrt(qdf * fcrit) : NAN);
                 cr->ci_simultaneous = 1;
                 break;
             default:
-                crit = tq(one ? alpha : alpha / 2, dfe);
+                crit = tq(one ? alpha : alpha / 2, cr->df);
                 cr->ci_simultaneous = 0;
                 break;
             }
-            if (cr->ci_simultaneous && !one) res->family_crit = crit;
+            if (cr->ci_simultaneous && !one && cr->df == dfe) res->family_crit = crit;
             set_interval(cr, crit);
         }
         /* Orthogonality with the replicates actually obtained (cell-means fits): the SS of
@@ -1071,7 +1111,7 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
     for (size_t i = 0, j = 0; i < plan->nexplores; i++) {
         if (!plan->explores[i].valid) continue;
         avow_contrast_result *cr = &res->explores[j++];
-        contrast_basic(&M, &plan->explores[i], cr);
+        contrast_basic(&M, &plan->explores[i], 0, cr);
         cr->std_effect = res->resid_sd > 0 ? cr->estimate / res->resid_sd : NAN;
         cr->p_adj = dist_f_q(cr->t * cr->t / qdf, qdf, dfe);
         cr->reject = cr->p_adj <= alpha;

@@ -117,7 +117,8 @@ static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t 
         fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(t, 1, "%s", a);
         fmt_fixed(a, sizeof a, r->se, dec); table_cell(t, 2, "%s", a);
         table_cell(t, 3, "%.3f", r->t);
-        table_cell(t, 4, "%.0f", r->df);
+        if (r->df == floor(r->df)) table_cell(t, 4, "%.0f", r->df);
+        else table_cell(t, 4, "%.1f", r->df);
         fmt_p(a, sizeof a, r->p); table_cell(t, 5, "%s", a);
         fmt_p(a, sizeof a, r->p_adj); table_cell(t, 6, "%s", a);
         fmt_fixed(c, sizeof c, r->ci_lo, dec); fmt_fixed(d, sizeof d, r->ci_hi, dec);
@@ -696,6 +697,9 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             sb_puts(o, "- The planned contrasts are not all orthogonal with the replicates obtained: their tests\n"
                        "  share information and their sums of squares do not split the between-levels sum.\n");
         }
+        if (p->separate_variances && r->fit != FIT_GENERAL)
+            sb_puts(o, "- Under `variances separate` each planned contrast's standard error comes from each\n"
+                       "  level's own variance, with Welch-Satterthwaite degrees of freedom.\n");
         int one = 0;
         for (size_t i = 0; i < r->ncontrasts; i++) one |= r->contrasts[i].pc->side != SIDE_TWO;
         if (one)

@@ -251,6 +251,31 @@ rel(e["cohen_f_ci"][0], 0.38156590753253994, 1e-10, "methods.md ES-nist: f 95% l
 rel(e["cohen_f_ci"][1], 1.7720208495876562, 1e-10, "methods.md ES-nist: f 95% upper")
 print("methods.md check values: compared")
 
+# 4b. planned contrasts under `variances separate`: b - a against Welch's two-sample t
+#     test (SciPy 1.10.1 scipy.stats.ttest_ind(equal_var=False)), and a three-level
+#     contrast against the Welch-Satterthwaite formula with fractions
+g = {"a": ["1.0", "1.4", "0.8", "1.1"], "b": ["2.0", "3.1", "1.2"], "c": ["5.5", "3.0", "7.1", "4.4", "6.0"]}
+js = run('study "sep"\nresponse y\nfactor g { a b c }\nvariances separate\nadjust none\ndata "d.csv"\n'
+         'contrast ab = b - a\ncontrast rest = c - mean(a, b) > 0\n', ["g", "y"],
+         [[k, v] for k, vs in g.items() for v in vs])
+C = {c["name"]: c for c in js["contrasts"]}
+ref = stats.ttest_ind([float(x) for x in g["b"]], [float(x) for x in g["a"]], equal_var=False)
+rel(C["ab"]["t"], ref.statistic, 1e-13, "separate-variances: ab t (scipy ttest_ind)")
+rel(C["ab"]["p"], ref.pvalue, 1e-11, "separate-variances: ab p (scipy ttest_ind)")
+fr = {k: [Fraction(x) for x in vs] for k, vs in g.items()}
+coef = {"c": Fraction(1), "a": Fraction(-1, 2), "b": Fraction(-1, 2)}
+w = {}
+for k, vs in fr.items():
+    n = len(vs)
+    mean = sum(vs) / n
+    s2 = sum((x - mean) ** 2 for x in vs) / (n - 1)
+    w[k] = coef[k] ** 2 * s2 / n
+df = sum(w.values()) ** 2 / sum(w[k] ** 2 / (len(fr[k]) - 1) for k in w)
+se = math.sqrt(float(sum(w.values())))
+rel(C["rest"]["se"], se, 1e-15, "separate-variances: rest se (formula, fractions)")
+rel(C["rest"]["df"], float(df), 1e-15, "separate-variances: rest df (formula, fractions)")
+rel(C["rest"]["p"], stats.t.sf(C["rest"]["estimate"] / se, float(df)), 1e-11, "separate-variances: rest p (scipy t.sf)")
+
 # 5. --no-diagnostics: nothing computed, nothing else changed
 a = subprocess.run([AVOW, "run", "--format", "json", "tests/golden/handbook/study.avow"], capture_output=True, text=True).stdout
 b = subprocess.run([AVOW, "run", "--format", "json", "--no-diagnostics", "tests/golden/handbook/study.avow"],
