@@ -19,7 +19,7 @@ static const char usage_text[] =
     "\n"
     "commands:\n"
     "  check STUDY [--format text|json]   review the plan of a study file; reads no data\n"
-    "  run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
+    "  run STUDY [--format text|json] [--data FILE] [-o FILE] [--no-diagnostics]\n"
     "                                     analyse the data and write the report\n"
     "  sheet STUDY [--seed N] [-o FILE]   lay out the randomized run sheet to fill in\n"
     "  fmt STUDY [-w]                     print the canonical form; -w rewrites the file\n"
