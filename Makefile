@@ -4,6 +4,8 @@
 #   make check      every test (unit, diagnostics, formatting, reference checks)
 #   make demo       the main example end to end
 #   make sanitize   AddressSanitizer + UndefinedBehaviorSanitizer build running every test
+#   make install    install under PREFIX (default /usr/local; DESTDIR for staging)
+#   make uninstall  remove exactly what make install put there
 #   make clean      remove build/
 
 CC       ?= cc
@@ -24,7 +26,7 @@ TOOLSRC  := $(sort $(wildcard tests/tools/*.c))
 TOOLBIN  := $(patsubst tests/tools/%.c,$(B)/tests/tools/%,$(TOOLSRC))
 DEPSOK   := $(B)/.deps-ok
 
-.PHONY: all check demo sanitize clean deps unit
+.PHONY: all check demo sanitize clean deps unit install uninstall
 all: $(B)/avow
 
 deps: $(DEPSOK)
@@ -87,6 +89,52 @@ sanitize:
 
 clean:
 	rm -rf build
+
+# Installation. Every file make install writes is listed here, and make uninstall
+# removes exactly these (and the two folders of avow's own, when left empty).
+PREFIX       ?= /usr/local
+DESTDIR      ?=
+BINDIR       ?= $(PREFIX)/bin
+LIBDIR       ?= $(PREFIX)/lib
+INCLUDEDIR   ?= $(PREFIX)/include
+DATADIR      ?= $(PREFIX)/share
+MANDIR       ?= $(DATADIR)/man
+PKGCONFIGDIR ?= $(LIBDIR)/pkgconfig
+VIMDIR       ?= $(DATADIR)/vim/vimfiles
+EMACSDIR     ?= $(DATADIR)/emacs/site-lisp
+BASHCOMPDIR  ?= $(DATADIR)/bash-completion/completions
+INSTALL      ?= install
+VERSION    := $(shell sed -n 's/^\#define AVOW_VERSION "\(.*\)"/\1/p' include/avow/render.h)
+HEADERS    := $(notdir $(sort $(wildcard include/avow/*.h)))
+VIMFILES   := syntax/avow.vim ftdetect/avow.vim indent/avow.vim
+TMFILES    := avow.tmLanguage.json language-configuration.json
+D          := $(DESTDIR)
+
+install: $(B)/avow $(B)/libavow.a
+	$(INSTALL) -d $(D)$(BINDIR) $(D)$(LIBDIR) $(D)$(PKGCONFIGDIR) $(D)$(INCLUDEDIR)/avow \
+	  $(D)$(MANDIR)/man1 $(D)$(MANDIR)/man5 $(addprefix $(D)$(VIMDIR)/,$(sort $(dir $(VIMFILES)))) \
+	  $(D)$(EMACSDIR) $(D)$(DATADIR)/avow $(D)$(BASHCOMPDIR)
+	$(INSTALL) -m 755 $(B)/avow $(D)$(BINDIR)/avow
+	$(INSTALL) -m 644 $(B)/libavow.a $(D)$(LIBDIR)/libavow.a
+	$(INSTALL) -m 644 $(addprefix include/avow/,$(HEADERS)) $(D)$(INCLUDEDIR)/avow
+	sed -e 's|@PREFIX@|$(PREFIX)|' -e 's|@LIBDIR@|$(LIBDIR)|' -e 's|@INCLUDEDIR@|$(INCLUDEDIR)|' \
+	  -e 's|@VERSION@|$(VERSION)|' mk/avow.pc.in >$(D)$(PKGCONFIGDIR)/avow.pc
+	chmod 644 $(D)$(PKGCONFIGDIR)/avow.pc
+	$(INSTALL) -m 644 doc/avow.1 $(D)$(MANDIR)/man1/avow.1
+	$(INSTALL) -m 644 doc/avow.5 $(D)$(MANDIR)/man5/avow.5
+	for f in $(VIMFILES); do $(INSTALL) -m 644 editor-support/vim/$$f $(D)$(VIMDIR)/$$f || exit 1; done
+	$(INSTALL) -m 644 editor-support/emacs/avow-mode.el $(D)$(EMACSDIR)/avow-mode.el
+	$(INSTALL) -m 644 $(addprefix editor-support/textmate/,$(TMFILES)) $(D)$(DATADIR)/avow
+	$(INSTALL) -m 644 editor-support/bash/avow $(D)$(BASHCOMPDIR)/avow
+
+uninstall:
+	rm -f $(D)$(BINDIR)/avow $(D)$(LIBDIR)/libavow.a $(D)$(PKGCONFIGDIR)/avow.pc \
+	  $(addprefix $(D)$(INCLUDEDIR)/avow/,$(HEADERS)) \
+	  $(D)$(MANDIR)/man1/avow.1 $(D)$(MANDIR)/man5/avow.5 \
+	  $(addprefix $(D)$(VIMDIR)/,$(VIMFILES)) $(D)$(EMACSDIR)/avow-mode.el \
+	  $(addprefix $(D)$(DATADIR)/avow/,$(TMFILES)) $(D)$(BASHCOMPDIR)/avow
+	for d in $(D)$(INCLUDEDIR)/avow $(D)$(DATADIR)/avow; do \
+	  if [ -d $$d ] && [ -z "$$(ls -A $$d)" ]; then rmdir $$d; fi; done
 
 -include $(wildcard $(B)/obj/*.d)
 

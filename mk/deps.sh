@@ -2,8 +2,19 @@
 # Dependency step of the build: every Debian package avow needs to build and test.
 # Installs what is missing with apt-get when run as root; otherwise prints the exact
 # command and stops.
+#   build:            re2c lemon libgsl-dev libssl-dev libgmp-dev make gcc
+#   unit tests:       libcmocka-dev
+#   reference checks: python3-scipy python3-numpy
+#   install test:     pkg-config (links a program against the installed libavow)
+#   manual lint:      groff-base (groff -man -ww)
+#   editor files:     vim (syntax, indent), emacs-nox (byte-compiles avow-mode.el),
+#                     nodejs and npm (the TextMate grammar, tokenized by vscode-textmate)
 set -u
-packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy python3-mpmath make gcc"
+packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy python3-mpmath make gcc
+pkg-config groff-base vim emacs-nox"
+# Checked by command rather than by package: Node.js from another source (one package
+# that provides npm) serves as well as Debian's nodejs and npm.
+commands="node:nodejs npm:npm"
 missing=""
 for pkg in $packages; do
     status=$(dpkg-query -W -f='${Status}' "$pkg" 2>/dev/null)
@@ -12,11 +23,14 @@ for pkg in $packages; do
         *) missing="$missing $pkg" ;;
     esac
 done
+for pair in $commands; do
+    command -v "${pair%%:*}" >/dev/null 2>&1 || missing="$missing ${pair#*:}"
+done
 [ -z "$missing" ] && exit 0
 if [ "$(id -u)" = 0 ]; then
     echo "avow: installing build dependencies:$missing" >&2
     export DEBIAN_FRONTEND=noninteractive
-    if apt-get update -qq >&2 && apt-get install -y -qq --no-install-recommends $missing >&2; then
+    if apt-get -o DPkg::Lock::Timeout=600 update -qq >&2 && apt-get -o DPkg::Lock::Timeout=600 install -y -qq --no-install-recommends $missing >&2; then
         exit 0
     fi
     echo "avow: apt-get failed; install by hand:  apt-get install -y$missing" >&2

@@ -39,6 +39,7 @@ struct csv_reader {
     unsigned char delim;            /* field delimiter */
     uint64_t line;                  /* physical line number at pos */
     uint64_t comments;              /* comment lines skipped before the header row */
+    uint64_t nread;                 /* bytes read from the source so far */
     csv_field *fields;              /* field table of the current record */
     size_t fcap;                    /* entries allocated in fields */
     unsigned char stop_unq[256];    /* nonzero: byte ends an unquoted run */
@@ -161,6 +162,7 @@ static int refill(csv_reader *r, size_t col)
         got = (size_t)n;
     }
     if (got == 0) r->eof = 1;
+    r->nread += got;
     r->end += got;
     r->buf[r->end] = 0;
     return AVOW_OK;
@@ -398,6 +400,8 @@ static int skip_comments(csv_reader *r)
 }
 
 uint64_t csv_comment_lines(const csv_reader *r) { return r->comments; }
+
+uint64_t csv_bytes_read(const csv_reader *r) { return r->nread; }
 
 char csv_delimiter_for_path(const char *path)
 {

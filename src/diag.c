@@ -198,8 +198,25 @@ void ctx_sort_diags(avow_ctx *ctx)
 /* Longest part of a source line shown, in characters. */
 #define SHOW_MAX 160
 
+/* The colours of DIAG_COLOUR (ANSI SGR sequences). */
+#define SGR_RESET   "\033[0m"
+#define SGR_LOC     "\033[1m"      /* bold: FILE:LINE:COL: */
+#define SGR_ERROR   "\033[1;31m"   /* bold red */
+#define SGR_WARNING "\033[1;35m"   /* bold magenta */
+#define SGR_NOTE    "\033[1;36m"   /* bold cyan */
+#define SGR_HINT    "\033[36m"     /* cyan */
+#define SGR_CARET   "\033[32m"     /* green */
+
+/* Append s[0..n) wrapped in the colour sgr when styled. */
+static void put_styled(strbuf *out, diag_style style, const char *sgr, const char *s, size_t n)
+{
+    if (style == DIAG_COLOUR) sb_puts(out, sgr);
+    sb_put(out, s, n);
+    if (style == DIAG_COLOUR) sb_puts(out, SGR_RESET);
+}
+
 /* Append the source line around [s, e) (offsets) with carets beneath. */
-static void render_excerpt(const avow_ctx *ctx, uint32_t s, uint32_t e, strbuf *out)
+static void render_excerpt(const avow_ctx *ctx, uint32_t s, uint32_t e, diag_style style, strbuf *out)
 {
     if (ctx->len == 0) return;
     unsigned line, col;
@@ -238,28 +255,100 @@ static void render_excerpt(const avow_ctx *ctx, uint32_t s, uint32_t e, strbuf *
     if (!any_caret) sb_putc(&car, '^');   /* span at end of line */
     sb_put(out, src.s ? src.s : "", src.len);
     sb_puts(out, "\n  ");
-    sb_put(out, car.s ? car.s : "", car.len);
+    put_styled(out, style, SGR_CARET, car.s ? car.s : "", car.len);
     sb_putc(out, '\n');
     if (src.failed || car.failed) out->failed = 1;
     sb_free(&src); sb_free(&car);
 }
 
-void diag_render_one(const avow_ctx *ctx, const avow_diag *d, strbuf *out)
+/* Append `FILE:LINE:COL: label: ` with the location and the label styled. */
+static void put_heading(strbuf *out, diag_style style, const char *path, unsigned line, unsigned col,
+                        const char *sgr, const char *label)
+{
+    if (style == DIAG_COLOUR) sb_puts(out, SGR_LOC);
+    sb_printf(out, "%s:%u:%u:", path, line, col);
+    if (style == DIAG_COLOUR) sb_puts(out, SGR_RESET);
+    sb_putc(out, ' ');
+    put_styled(out, style, sgr, label, strlen(label));
+    sb_putc(out, ' ');
+}
+
+void diag_render_one_styled(const avow_ctx *ctx, const avow_diag *d, diag_style style, strbuf *out)
 {
     unsigned line, col;
     ctx_line_col(ctx, d->span.start, &line, &col);
-    sb_printf(out, "%s:%u:%u: %s: %s\n", ctx->path, line, col,
-              d->sev == DIAG_ERROR ? "error" : "warning", d->msg);
-    if (!d->whole_file) render_excerpt(ctx, d->span.start, d->span.end, out);
-    if (d->hint) sb_printf(out, "  hint: %s\n", d->hint);
+    if (d->sev == DIAG_ERROR) put_heading(out, style, ctx->path, line, col, SGR_ERROR, "error:");
+    else put_heading(out, style, ctx->path, line, col, SGR_WARNING, "warning:");
+    sb_printf(out, "%s\n", d->msg);
+    if (!d->whole_file) render_excerpt(ctx, d->span.start, d->span.end, style, out);
+    if (d->hint) {
+        sb_puts(out, "  ");
+        put_styled(out, style, SGR_HINT, "hint:", 5);
+        sb_printf(out, " %s\n", d->hint);
+    }
     if (d->has_related) {
         ctx_line_col(ctx, d->related.start, &line, &col);
-        sb_printf(out, "%s:%u:%u: note: %s\n", ctx->path, line, col,
-                  d->related_msg ? d->related_msg : "see here");
+        put_heading(out, style, ctx->path, line, col, SGR_NOTE, "note:");
+        sb_printf(out, "%s\n", d->related_msg ? d->related_msg : "see here");
     }
+}
+
+void diag_render_one(const avow_ctx *ctx, const avow_diag *d, strbuf *out)
+{
+    diag_render_one_styled(ctx, d, DIAG_PLAIN, out);
+}
+
+void diag_render_styled(const avow_ctx *ctx, diag_style style, strbuf *out)
+{
+    for (size_t i = 0; i < ctx->ndiags; i++) diag_render_one_styled(ctx, &ctx->diags[i], style, out);
 }
 
 void diag_render(const avow_ctx *ctx, strbuf *out)
 {
-    for (size_t i = 0; i < ctx->ndiags; i++) diag_render_one(ctx, &ctx->diags[i], out);
+    diag_render_styled(ctx, DIAG_PLAIN, out);
+}
+
+/* The first `: LABEL ` of a line [s, e) for the three labels; NULL when none. */
+static const char *find_label(const char *s, const char *e, const char **sgr, size_t *lablen)
+{
+    static const struct { const char *text; const char *sgr; } labels[] = {
+        {": error: ", SGR_ERROR}, {": warning: ", SGR_WARNING}, {": note: ", SGR_NOTE},
+    };
+    const char *best = NULL;
+    for (size_t k = 0; k < sizeof labels / sizeof labels[0]; k++) {
+        size_t n = strlen(labels[k].text);
+        for (const char *p = s; p + n <= e; p++)
+            if (memcmp(p, labels[k].text, n) == 0) {
+                if (!best || p < best) { best = p; *sgr = labels[k].sgr; *lablen = n - 3; }
+                break;
+            }
+    }
+    return best;
+}
+
+void diag_paint(const char *text, size_t len, diag_style style, strbuf *out)
+{
+    if (style != DIAG_COLOUR) { sb_put(out, text, len); return; }
+    const char *p = text, *end = text + len;
+    while (p < end) {
+        const char *nl = memchr(p, '\n', (size_t)(end - p));
+        const char *e = nl ? nl : end;
+        const char *sgr = NULL;
+        size_t lablen = 0;
+        const char *at = p < e && *p != ' ' ? find_label(p, e, &sgr, &lablen) : NULL;
+        if (at) {
+            put_styled(out, style, SGR_LOC, p, (size_t)(at - p) + 1);       /* FILE:LINE:COL: */
+            sb_putc(out, ' ');
+            put_styled(out, style, sgr, at + 2, lablen);                    /* error: */
+            sb_put(out, at + 2 + lablen, (size_t)(e - (at + 2 + lablen)));
+        } else if (e - p >= 8 && memcmp(p, "  hint: ", 8) == 0) {
+            sb_puts(out, "  ");
+            put_styled(out, style, SGR_HINT, "hint:", 5);
+            sb_put(out, p + 7, (size_t)(e - (p + 7)));
+        } else {
+            sb_put(out, p, (size_t)(e - p));
+        }
+        if (nl) sb_putc(out, '\n');
+        p = nl ? nl + 1 : end;
+    }
 }

@@ -1,10 +1,13 @@
 /* main.c: the avow command. A thin driver over libavow: parses the command line, runs
  * the stages, prints diagnostics and writes output. The only place that prints. */
 #include <errno.h>
+#include <stdarg.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
+#include <unistd.h>
 
 #include "avow/evaluate.h"
 #include "avow/plan.h"
@@ -18,94 +21,111 @@ static const char usage_text[] =
     "usage: avow COMMAND [ARGS]\n"
     "\n"
     "commands:\n"
-    "  check STUDY [--format text|json]   review the plan of a study file; reads no data\n"
+    "  check STUDY [--format text|json]   review the plan of a study; reads no data\n"
     "  run STUDY [--format text|json] [--data FILE] [-o FILE] [--no-diagnostics]\n"
     "                                     analyse the data and write the report\n"
-    "  sheet STUDY [--seed N] [-o FILE]   lay out the randomized run sheet to fill in\n"
-    "  fmt STUDY [-w]                     print the canonical form; -w rewrites the file\n"
+    "  sheet STUDY [--seed N] [-o FILE]   lay out the randomized run sheet\n"
+    "  fmt STUDY [-w]                     print the canonical form; -w rewrites it\n"
     "  help [COMMAND]                     describe a command\n"
     "\n"
     "options:\n"
     "  --help       this text\n"
     "  --version    the version of avow\n"
     "\n"
-    "exit status: 0 success, 1 the study file has errors, 2 the data do not fit the study,\n"
-    "64 the command line is wrong.\n";
+    "exit status: 0 success, 1 the study file has errors, 2 the data do not fit\n"
+    "the study, 64 the command line is wrong.\n";
 
 static const char help_check[] =
     "usage: avow check STUDY [--format text|json]\n"
     "\n"
-    "Reads the study file and reviews its plan without any data: the response, the factor\n"
-    "and its levels, every planned and exploratory contrast as exact fractions with its\n"
-    "sum check, the orthogonality of the planned contrasts, the family plan (how alpha is\n"
-    "shared), and the design assumptions of the plan block.\n"
+    "Reads the study file and reviews its plan without any data: the response,\n"
+    "the factors and their levels, every planned and exploratory contrast as\n"
+    "exact fractions with its sum check, the orthogonality of the planned\n"
+    "contrasts, the family plan (how alpha is shared), and the design\n"
+    "assumptions and power of the plan block.\n"
     "\n"
-    "Errors and warnings go to standard error as FILE:LINE:COL: error: message, with the\n"
-    "source line and carets. The review goes to standard output.\n"
+    "Errors and warnings go to standard error as FILE:LINE:COL: error: message,\n"
+    "with the source line and carets (in colour on a terminal, unless NO_COLOR\n"
+    "is set). The review goes to standard output.\n"
     "\n"
     "  --format text   the review for people (default)\n"
-    "  --format json   the review as avow.plan/1 JSON; with errors, only the diagnostics\n"
+    "  --format json   the review as avow.plan/1 JSON; with errors, only the\n"
+    "                  diagnostics\n"
+    "  --help          this text\n"
     "\n"
     "exit status: 0 no errors (warnings allowed), 1 errors, 64 command-line misuse.\n";
 
 static const char help_fmt[] =
     "usage: avow fmt STUDY [-w]\n"
     "\n"
-    "Prints the study file in canonical form: one statement per line, block items indented\n"
-    "by four spaces, one level per line, minimal parentheses, comments kept in place and\n"
-    "single blank lines kept where they were. Formatting twice changes nothing, and the\n"
-    "formatted file checks to the same plan.\n"
+    "Prints the study file in canonical form: one statement per line, block items\n"
+    "indented by four spaces, one level per line, minimal parentheses, comments\n"
+    "kept in place and single blank lines kept where they were. Formatting twice\n"
+    "changes nothing, and the formatted file checks to the same plan.\n"
     "\n"
-    "  -w   rewrite STUDY in place (atomically) instead of printing; untouched when\n"
-    "       already canonical\n"
+    "  -w       rewrite STUDY in place (atomically) instead of printing;\n"
+    "           untouched when already canonical\n"
+    "  --help   this text\n"
     "\n"
     "exit status: 0 done, 1 the file has syntax errors, 64 command-line misuse.\n";
 
 static const char help_run[] =
-    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE] [--no-diagnostics]\n"
+    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
+    "                [--no-diagnostics]\n"
     "\n"
-    "Checks the study, reads its data file in one pass, and writes the analysis report:\n"
-    "the inputs with their SHA-256 digests and row counts, the study file echoed with line\n"
-    "numbers, level summaries, the ANOVA table, the planned contrasts with raw and adjusted\n"
-    "p-values, intervals and findings, exploratory contrasts, effect sizes, checks of the\n"
-    "assumptions with robust alternatives, and notes.\n"
+    "Checks the study, reads its data file in one pass, and writes the analysis\n"
+    "report: the inputs with their SHA-256 digests and row counts, the study file\n"
+    "echoed with line numbers, level summaries, the ANOVA table, the planned\n"
+    "contrasts with raw and adjusted p-values, intervals and findings,\n"
+    "exploratory contrasts, effect sizes, checks of the assumptions with robust\n"
+    "alternatives, and notes. On a terminal, the reading of a data file larger\n"
+    "than 50 MB shows its progress on standard error.\n"
     "\n"
-    "  --format text   the report for people (default)\n"
-    "  --format json   the report as avow.report/1 JSON\n"
-    "  --data FILE     analyse FILE instead of the study's data file (the study's sha256\n"
-    "                  lock applies to its own file only; the report names the file used)\n"
-    "  -o FILE         write the report to FILE atomically instead of standard output\n"
-    "  --no-diagnostics  skip the checks of the assumptions (they keep every value in\n"
-    "                  memory; without them memory stays small for any number of rows)\n"
+    "  --format text      the report for people (default)\n"
+    "  --format json      the report as avow.report/1 JSON\n"
+    "  --data FILE        analyse FILE instead of the study's data file (the\n"
+    "                     study's sha256 lock applies to its own file only; the\n"
+    "                     report names the file used)\n"
+    "  -o FILE            write the report to FILE atomically instead of standard\n"
+    "                     output\n"
+    "  --no-diagnostics   skip the checks of the assumptions (they keep every\n"
+    "                     value in memory; without them memory stays small for\n"
+    "                     any number of rows)\n"
+    "  --help             this text\n"
     "\n"
-    "exit status: 0 done, 1 the study file has errors, 2 the data do not fit the study\n"
-    "(missing or changed file, unknown level label, non-numeric value, a level without\n"
-    "data, too few observations), 64 command-line misuse. On any error no report is written.\n";
+    "exit status: 0 done, 1 the study file has errors, 2 the data do not fit the\n"
+    "study (missing or changed file, unknown level label, non-numeric value, a\n"
+    "level without data, too few observations), 64 command-line misuse. On any\n"
+    "error no report is written.\n";
 
 static const char help_sheet[] =
     "usage: avow sheet STUDY [--seed N] [-o FILE]\n"
     "\n"
-    "Checks the study and lays out its randomized run sheet: every treatment cell (a\n"
-    "combination of the factors' levels) as often as the plan block's `replicates` say;\n"
-    "with a block, the full set in every block, blocks in their declared order and the\n"
-    "order random within each block; without one, a single random order of all runs.\n"
-    "Runs are numbered 1..N. The order comes from GSL's mt19937 generator, seeded with the\n"
-    "seed modulo 2^32, and a Fisher-Yates shuffle: the same study and seed give the same\n"
-    "sheet, byte for byte.\n"
+    "Checks the study and lays out its randomized run sheet: every treatment cell\n"
+    "(a combination of the factors' levels) as often as the plan block's\n"
+    "`replicates` say; with a block, the full set in every block, blocks in their\n"
+    "declared order and the order random within each block; without one, a\n"
+    "single random order of all runs. Runs are numbered 1..N. The order comes\n"
+    "from GSL's mt19937 generator, seeded with the seed modulo 2^32, and a\n"
+    "Fisher-Yates shuffle: the same study and seed give the same sheet, byte for\n"
+    "byte.\n"
     "\n"
-    "The sheet is CSV (or the study's delimiter; tab for a .tsv or .tab file name): a\n"
-    "first line beginning with # that records avow's version, the study's SHA-256, the\n"
-    "seed, the generator, the runs and blocks; a header row (run, each factor's data\n"
-    "column, the block's, the response's); one row per run with the level labels and an\n"
-    "empty response. Once the responses are filled in it is the data file `avow run`\n"
-    "reads (it skips lines beginning with # before the header).\n"
+    "The sheet is CSV (or the study's delimiter; tab for a .tsv or .tab file\n"
+    "name): a first line beginning with # that records avow's version, the\n"
+    "study's SHA-256, the seed, the generator, the runs and blocks; a header row\n"
+    "(run, each factor's data column, the block's, the response's); one row per\n"
+    "run with the level labels and an empty response. Once the responses are\n"
+    "filled in it is the data file `avow run` reads (it skips lines beginning\n"
+    "with # before the header).\n"
     "\n"
-    "  --seed N   the seed, a whole number from 0 to 18446744073709551615; overrides the\n"
-    "             plan block's `seed`\n"
+    "  --seed N   the seed, a whole number from 0 to 18446744073709551615;\n"
+    "             overrides the plan block's `seed`\n"
     "  -o FILE    write the sheet to FILE atomically instead of standard output\n"
+    "  --help     this text\n"
     "\n"
-    "exit status: 0 done, 1 the study has errors or cannot be laid out (no replicates\n"
-    "planned, a block whose levels come from the data, no seed), 64 command-line misuse.\n";
+    "exit status: 0 done, 1 the study has errors or cannot be laid out (no\n"
+    "replicates planned, a block whose levels come from the data, no seed),\n"
+    "64 command-line misuse.\n";
 
 static int usage_error(const char *fmt, const char *arg)
 {
@@ -121,12 +141,98 @@ static void write_stdout(const strbuf *b)
     fflush(stdout);
 }
 
+/* Terminal manners. Colour and the progress indicator go to standard error only when it
+ * is a terminal, so they never reach a file or a pipe; NO_COLOR (set to any value, even
+ * empty) or TERM=dumb turns the colour off. Decided once, in main. */
+static diag_style stderr_style = DIAG_PLAIN;
+static int stderr_is_tty = 0;
+
+static void decide_terminal_manners(void)
+{
+    stderr_is_tty = isatty(STDERR_FILENO);
+    const char *term = getenv("TERM");
+    stderr_style = stderr_is_tty && !getenv("NO_COLOR") && !(term && strcmp(term, "dumb") == 0)
+                       ? DIAG_COLOUR : DIAG_PLAIN;
+}
+
+/* Write diagnostic text that is rendered plain (the data reader's messages, the
+ * driver's own `FILE: error:` lines) to standard error, styled for the terminal. */
+static void put_diag_text(const char *text, size_t len)
+{
+    if (!len) return;
+    if (stderr_style == DIAG_PLAIN) { fwrite(text, 1, len, stderr); return; }
+    strbuf b = {0};
+    diag_paint(text, len, stderr_style, &b);
+    if (b.failed) fwrite(text, 1, len, stderr);
+    else fwrite(b.s, 1, b.len, stderr);
+    sb_free(&b);
+}
+
+/* printf a plain diagnostic to standard error through put_diag_text. */
+static void diag_printf(const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 1, 2)))
+#endif
+    ;
+static void diag_printf(const char *fmt, ...)
+{
+    strbuf m = {0};
+    va_list ap;
+    va_start(ap, fmt);
+    sb_vprintf(&m, fmt, ap);
+    va_end(ap);
+    if (m.failed) fprintf(stderr, "avow: out of memory\n");
+    else put_diag_text(m.s, m.len);
+    sb_free(&m);
+}
+
 static void print_diags(const avow_ctx *ctx)
 {
     strbuf b = {0};
-    diag_render(ctx, &b);
+    diag_render_styled(ctx, stderr_style, &b);
     if (b.len) fwrite(b.s, 1, b.len, stderr);
     sb_free(&b);
+}
+
+/* The progress indicator of `avow run`: shown on a terminal for data files larger than
+ * PROGRESS_MIN_BYTES, at most every PROGRESS_INTERVAL_NS, erased when the pass ends. */
+#define PROGRESS_MIN_BYTES 50000000ull   /* 50 MB */
+#define PROGRESS_INTERVAL_NS 250000000ll /* four updates a second at most */
+
+typedef struct progress_line {
+    int width;              /* characters shown on the terminal; 0: nothing shown */
+    int pct;                /* the percentage shown */
+    struct timespec when;   /* when it was shown */
+} progress_line;
+
+static void progress_show(void *arg, uint64_t done, uint64_t total)
+{
+    progress_line *p = arg;
+    if (total <= PROGRESS_MIN_BYTES) return;
+    int pct = done >= total ? 100 : (int)(done / (total / 100 + 1));
+    if (pct > 100) pct = 100;
+    struct timespec now;
+    if (clock_gettime(CLOCK_MONOTONIC, &now) != 0) return;
+    if (p->width) {
+        long long ns = (long long)(now.tv_sec - p->when.tv_sec) * 1000000000ll + (now.tv_nsec - p->when.tv_nsec);
+        if (ns < PROGRESS_INTERVAL_NS || pct == p->pct) return;
+    }
+    char text[64];
+    int n = snprintf(text, sizeof text, "avow: reading the data file, %d%%", pct);
+    if (n <= 0 || (size_t)n >= sizeof text) return;
+    fprintf(stderr, "\r%s", text);
+    fflush(stderr);
+    p->width = n;
+    p->pct = pct;
+    p->when = now;
+}
+
+static void progress_erase(progress_line *p)
+{
+    if (!p->width) return;
+    fprintf(stderr, "\r%*s\r", p->width, "");
+    fflush(stderr);
+    p->width = 0;
 }
 
 /* Load a study file into ctx; prints the reason and returns nonzero on failure. */
@@ -316,24 +422,27 @@ static int cmd_run(int argc, char **argv)
     if (eval_data_init(&data, &plan) != AVOW_OK) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     /* The digest is computed on a second thread while the data are read. */
     eval_hash_job *job = eval_sha256_start(data_path);
-    size_t nerr = eval_read(&plan, data_path, data_path, &data, &res, &errs);
+    progress_line bar = {0};
+    avow_progress progress = {progress_show, &bar};
+    size_t nerr = eval_read(&plan, data_path, data_path, &data, &res, &errs, stderr_is_tty ? &progress : NULL);
+    progress_erase(&bar);
     int hrc = eval_sha256_join(job, res.data_sha256);
     if (hrc != AVOW_OK) {
         if (hrc == AVOW_ENOMEM) fprintf(stderr, "avow: out of memory\n");
-        else fprintf(stderr, "%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
+        else diag_printf("%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
         rc = hrc == AVOW_ENOMEM ? EXIT_STUDY : EXIT_DATA;
         goto done;
     }
     if (plan.sha256 && !data_opt && strcmp(plan.sha256, res.data_sha256) != 0) {
-        fprintf(stderr, "%s: error: the data file has changed since the study locked it\n"
-                        "  sha256 locked in the study: %s\n  sha256 of the file now:     %s\n"
-                        "  hint: if the change is intended, update the `sha256` line of the data block\n",
-                data_path, plan.sha256, res.data_sha256);
+        diag_printf("%s: error: the data file has changed since the study locked it\n"
+                    "  sha256 locked in the study: %s\n  sha256 of the file now:     %s\n"
+                    "  hint: if the change is intended, update the `sha256` line of the data block\n",
+                    data_path, plan.sha256, res.data_sha256);
         rc = EXIT_DATA;
         goto done;
     }
     if (nerr != 0) {
-        fwrite(errs.s, 1, errs.len, stderr);
+        put_diag_text(errs.s, errs.len);
         fprintf(stderr, "avow: the data do not fit the study; no report was written\n");
         rc = EXIT_DATA;
         goto done;
@@ -341,8 +450,7 @@ static int cmd_run(int argc, char **argv)
     int arc = eval_analyse(&plan, &data, &res, &errs);
     if (arc != AVOW_OK) {
         if (errs.len) {
-            fprintf(stderr, "%s: error: ", data_path);
-            fwrite(errs.s, 1, errs.len, stderr);
+            diag_printf("%s: error: %.*s", data_path, (int)errs.len, errs.s);
             fprintf(stderr, "avow: no report was written\n");
         } else {
             fprintf(stderr, "avow: out of memory\n");
@@ -386,7 +494,7 @@ static int cmd_sheet(int argc, char **argv)
         ok = sheet_check(&ctx, &study, &plan, a.has_seed || plan.has_seed) == 0;
         if (ctx.oom) { fprintf(stderr, "avow: out of memory\n"); ctx_free(&ctx); return EXIT_STUDY; }
         strbuf e = {0};
-        for (size_t i = first; i < ctx.ndiags; i++) diag_render_one(&ctx, &ctx.diags[i], &e);
+        for (size_t i = first; i < ctx.ndiags; i++) diag_render_one_styled(&ctx, &ctx.diags[i], stderr_style, &e);
         if (e.len) fwrite(e.s, 1, e.len, stderr);
         sb_free(&e);
     }
@@ -461,6 +569,7 @@ static int cmd_fmt(int argc, char **argv)
 
 int main(int argc, char **argv)
 {
+    decide_terminal_manners();
     if (argc < 2) { fputs(usage_text, stderr); return EXIT_USAGE; }
     const char *cmd = argv[1];
     if (strcmp(cmd, "--help") == 0 || strcmp(cmd, "-h") == 0) { fputs(usage_text, stdout); return 0; }

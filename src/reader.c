@@ -12,6 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <openssl/evp.h>
@@ -392,8 +393,19 @@ static void missing_column(read_state *rs, const csv_record *rec, const char *na
                             "column name that begins with #: \"#id\"\n", (unsigned long long)comments);
 }
 
+/* Records between two looks at the bytes read, for the progress callback. */
+#define PROGRESS_RECORDS 4096
+
+/* Size of the open file fd, or 0 when it is not a regular file. */
+static uint64_t file_size(int fd)
+{
+    struct stat st;
+    if (fstat(fd, &st) != 0 || !S_ISREG(st.st_mode) || st.st_size < 0) return 0;
+    return (uint64_t)st.st_size;
+}
+
 size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_data *data,
-                 avow_results *res, strbuf *errs)
+                 avow_results *res, strbuf *errs, const avow_progress *progress)
 {
     read_state rs = {plan, shown, errs, 0};
     size_t nf = plan->nfactors, has_block = plan->block ? 1 : 0;
@@ -443,7 +455,16 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
     }
     if (rs.nerr) goto done;
     size_t ycol = (size_t)cols[ycol_i];
+    if (progress && !progress->fn) progress = NULL;
+    uint64_t total = progress ? file_size(fd) : 0, shown_bytes = 0;
+    unsigned tick = 0;
+    if (progress) progress->fn(progress->arg, shown_bytes = csv_bytes_read(r), total);
     for (;;) {
+        if (progress && ++tick == PROGRESS_RECORDS) {
+            tick = 0;
+            uint64_t n = csv_bytes_read(r);
+            if (n != shown_bytes) progress->fn(progress->arg, shown_bytes = n, total);
+        }
         int got = csv_next(r, &rec);
         if (got == 0) break;
         if (got < 0) {
@@ -590,6 +611,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         }
         res->used++;
     }
+    if (progress) progress->fn(progress->arg, csv_bytes_read(r), total);
     if (!rs.nerr && plan->saturated) {
         /* The cell-means model needs every cell; a model without some interactions, or with
          * blocks, may do without some (the analysis checks that every term is estimable). */

@@ -95,6 +95,10 @@ int csv_read_header(csv_reader *r, csv_record *rec);
 /* Comment lines skipped before the header row (0 before csv_read_header). */
 uint64_t csv_comment_lines(const csv_reader *r);
 
+/* Bytes read from the source so far (a read block ahead of the records returned), for a
+ * progress indicator. */
+uint64_t csv_bytes_read(const csv_reader *r);
+
 /* The delimiter for a data file by its name: tab for names ending in .tsv or .tab,
  * else ','. */
 char csv_delimiter_for_path(const char *path);

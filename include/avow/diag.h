@@ -98,4 +98,24 @@ void diag_render(const avow_ctx *ctx, strbuf *out);
 /* Render one diagnostic. */
 void diag_render_one(const avow_ctx *ctx, const avow_diag *d, strbuf *out);
 
+/* How rendered diagnostics look. The library never looks at the terminal: the caller
+ * (the command) decides and passes the style in. */
+typedef enum diag_style {
+    DIAG_PLAIN = 0,     /* plain text, as in files, pipes and the golden tests */
+    DIAG_COLOUR = 1     /* ANSI colours for a terminal: bold location, bold red `error:`,
+                         * bold magenta `warning:`, bold cyan `note:`, cyan `hint:`,
+                         * green carets; the characters are those of DIAG_PLAIN */
+} diag_style;
+
+/* diag_render and diag_render_one in a given style (DIAG_PLAIN gives the same bytes). */
+void diag_render_styled(const avow_ctx *ctx, diag_style style, strbuf *out);
+void diag_render_one_styled(const avow_ctx *ctx, const avow_diag *d, diag_style style, strbuf *out);
+
+/* Append diagnostic text that is already rendered in the plain form (such as the data
+ * reader's messages: `FILE:LINE:COL: error: message` lines and indented `  hint:`
+ * lines), styled: the location and the `error:`, `warning:` or `note:` after it on
+ * lines that begin at the first column, and `hint:` on lines that begin with
+ * `  hint: `. Other text is copied as it is; DIAG_PLAIN copies everything. */
+void diag_paint(const char *text, size_t len, diag_style style, strbuf *out);
+
 #endif

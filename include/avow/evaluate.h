@@ -5,6 +5,7 @@
 #define AVOW_EVALUATE_H
 
 #include <stddef.h>
+#include <stdint.h>
 
 #include "avow/decimal.h"
 #include "avow/plan.h"
@@ -57,12 +58,24 @@ typedef struct avow_data {
 int eval_data_init(avow_data *d, const avow_plan *plan);
 void eval_data_free(avow_data *d);
 
+/* Progress of the data pass, for a caller that wants to show it (the library shows
+ * nothing): fn(arg, done, total) is called with the bytes read so far and the file's
+ * size (0 when it is not a regular file): once after the header row, every few
+ * thousand records while the bytes read grow, and once at the end of the pass (done
+ * then equals the bytes read in all). fn must not touch the reader's data. */
+typedef void (*avow_progress_fn)(void *arg, uint64_t done, uint64_t total);
+typedef struct avow_progress {
+    avow_progress_fn fn;
+    void *arg;
+} avow_progress;
+
 /* Read the data file at `path` (shown in messages as `shown`) for the plan: map columns
  * and level labels, take each response value exactly, and account for every row.
  * Errors (each `FILE:LINE:COL: error: message`, at most AVOW_MAX_DATA_ERRORS) are
- * appended to errs. Returns the number of errors; 0 when the data fit the study. */
+ * appended to errs. `progress` may be NULL. Returns the number of errors; 0 when the
+ * data fit the study. */
 size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avow_data *data,
-                 avow_results *res, strbuf *errs);
+                 avow_results *res, strbuf *errs, const avow_progress *progress);
 
 /* Analyse the accumulated data: cell summaries, the ANOVA table, planned and
  * exploratory contrasts with their adjustments. Result arrays are allocated with
