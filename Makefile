@@ -2,7 +2,7 @@
 #
 #   make            build build/avow and build/libavow.a
 #   make check      every test (unit, diagnostics, formatting, reference checks)
-#   make demo       the main example end to end
+#   make demo       the main example end to end, with its pictures and HTML report
 #   make sanitize   AddressSanitizer + UndefinedBehaviorSanitizer build running every test
 #   make install    install under PREFIX (default /usr/local; DESTDIR for staging)
 #   make uninstall  remove exactly what make install put there
@@ -25,6 +25,7 @@ UNITBIN  := $(patsubst tests/unit/%.c,$(B)/tests/%,$(UNITSRC))
 TOOLSRC  := $(sort $(wildcard tests/tools/*.c))
 TOOLBIN  := $(patsubst tests/tools/%.c,$(B)/tests/tools/%,$(TOOLSRC))
 DEPSOK   := $(B)/.deps-ok
+DEPSTEST := $(B)/.deps-test-ok
 
 .PHONY: all check demo sanitize clean deps unit install uninstall
 all: $(B)/avow
@@ -32,6 +33,11 @@ all: $(B)/avow
 deps: $(DEPSOK)
 $(DEPSOK): mk/deps.sh
 	@sh mk/deps.sh
+	@mkdir -p $(B) && touch $@
+
+# What only the tests need (the browser test of the HTML report).
+$(DEPSTEST): mk/deps.sh | $(DEPSOK)
+	@sh mk/deps.sh test
 	@mkdir -p $(B) && touch $@
 
 # Generated sources: never committed, always made here.
@@ -76,12 +82,16 @@ $(B)/tests/tools/%: tests/tools/%.c $(B)/libavow.a
 
 unit: $(UNITBIN)
 
-check: $(B)/avow $(UNITBIN) $(TOOLBIN)
+check: $(B)/avow $(UNITBIN) $(TOOLBIN) | $(DEPSTEST)
 	@sh tests/run-all.sh $(B)
 
 demo: $(B)/avow
 	$(B)/avow check examples/cure/cure.avow
 	$(B)/avow run examples/cure/cure.avow
+	$(B)/avow run examples/cure/cure.avow --plots $(B)/demo --format html -o $(B)/demo/report.html
+	@echo
+	@echo "demo pictures (SVG): $(B)/demo/means.svg, intervals.svg, residuals.svg, probability.svg, spread.svg"
+	@echo "demo HTML report: $(B)/demo/report.html"
 
 sanitize:
 	$(MAKE) B=build/sanitize OPT=-O1 \

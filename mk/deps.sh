@@ -4,14 +4,19 @@
 # command and stops.
 #   build:            re2c lemon libgsl-dev libssl-dev libgmp-dev make gcc
 #   unit tests:       libcmocka-dev
-#   reference checks: python3-scipy python3-numpy
+#   reference checks: python3-scipy python3-numpy python3-mpmath
 #   install test:     pkg-config (links a program against the installed libavow)
 #   manual lint:      groff-base (groff -man -ww)
 #   editor files:     vim (syntax, indent), emacs-nox (byte-compiles avow-mode.el),
 #                     nodejs and npm (the TextMate grammar, tokenized by vscode-textmate)
+#   sh mk/deps.sh test   adds what only `make check` needs: headless Chromium, its
+#                        driver and Python's selenium, for the browser test of the
+#                        HTML report (tests/browser.sh)
 set -u
 packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy python3-mpmath make gcc
 pkg-config groff-base vim emacs-nox"
+test_packages="chromium chromium-driver python3-selenium"
+[ "${1:-}" = test ] && packages="$packages $test_packages"
 # Checked by command rather than by package: Node.js from another source (one package
 # that provides npm) serves as well as Debian's nodejs and npm.
 commands="node:nodejs npm:npm"

@@ -60,8 +60,11 @@ void eval_results_free(avow_results *res)
     res->nexplore_sets = 0;
     avow_free(res->effects);
     avow_free(res->checks.unusual);
+    avow_free(res->checks.resid);
     res->effects = NULL;
     res->checks.unusual = NULL;
+    res->checks.resid = NULL;
+    res->checks.nresiduals = 0;
 }
 
 /* ---- the fitted model ---- */
@@ -730,6 +733,36 @@ static void summarise_cells(model *M, avow_results *res)
 }
 
 /* Name the treatment cells without data, for an error message. */
+/* The reference distribution of k means whose squared standard errors are mse * w[i]
+ * (w = 1/n for a mean of n runs): the t distribution with df degrees of freedom scaled
+ * by sqrt(mse * mean(w)), that is resid_sd / sqrt(n_h) with n_h the harmonic mean of
+ * the n, sampled for the pictures. */
+static void reference_curve(avow_reference *ref, const double *w, size_t k, double mse, double df, double centre)
+{
+    memset(ref, 0, sizeof *ref);
+    ref->k = k;
+    ref->df = df;
+    ref->centre = centre;
+    double sum = 0;
+    int equal = 1;
+    for (size_t i = 0; i < k; i++) {
+        sum += w[i];
+        if (fabs(w[i] - w[0]) > 1e-12 * w[0]) equal = 0;
+    }
+    if (!k || !(sum > 0) || !(mse > 0) || !(df > 0) || !isfinite(centre)) return;
+    ref->equal_n = equal;
+    ref->n_h = (double)k / sum;
+    ref->scale = sqrt(mse / ref->n_h);
+    if (!(ref->scale > 0) || !isfinite(ref->scale)) return;
+    double peak = dist_t_density(0, df);
+    for (size_t i = 0; i < AVOW_CURVE_POINTS; i++) {
+        double u = -AVOW_CURVE_SPAN + 2 * AVOW_CURVE_SPAN * (double)i / (AVOW_CURVE_POINTS - 1);
+        ref->x[i] = centre + u * ref->scale;
+        ref->height[i] = dist_t_density(u, df) / peak;
+    }
+    ref->ok = isfinite(peak) && peak > 0;
+}
+
 static void list_empty(const model *M, strbuf *errs)
 {
     size_t shown = 0, total = 0;
@@ -994,6 +1027,24 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
             }
         }
         xla_free(c, M.T);
+    }
+    /* Reference distributions of the means, for the pictures. */
+    {
+        double *w = avow_calloc(M.T + res->nmargins + 1, sizeof *w);
+        if (!w) { rc = AVOW_ENOMEM; goto out; }
+        size_t k = 0;
+        for (size_t i = 0; i < M.T; i++) if (M.tn[i]) w[k++] = 1.0 / (double)M.tn[i];
+        reference_curve(&res->ref_cells, w, k, res->mse, M.dfe, res->grand_mean);
+        for (size_t f = 0, i = 0; f < plan->nfactors && res->nmargins; f++) {
+            double centre = 0;
+            k = 0;
+            for (; i < res->nmargins && res->margins[i].factor == f; i++) {
+                w[k++] = res->margins[i].se * res->margins[i].se / res->mse;
+                centre += res->margins[i].mean;
+            }
+            reference_curve(&res->ref_margins[f], w, k, res->mse, M.dfe, k ? centre / (double)k : NAN);
+        }
+        avow_free(w);
     }
     /* Block summaries. */
     if (plan->block) {

@@ -5,7 +5,10 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
+
+#include <gsl/gsl_cdf.h>
 
 #include "avow/diagnostics.h"
 
@@ -126,6 +129,44 @@ static int residuals(const avow_data *data, mpq_t *fitted, double *e)
     return AVOW_OK;
 }
 
+/* Order of residuals for the normal scores: by value, ties in file order. */
+typedef struct ranked { double e; size_t i; } ranked;
+static int ranked_cmp(const void *pa, const void *pb)
+{
+    const ranked *a = pa, *b = pb;
+    if (a->e < b->e) return -1;
+    if (a->e > b->e) return 1;
+    return a->i < b->i ? -1 : a->i > b->i;
+}
+
+/* Each observation's fitted value, residual and normal score (res->checks.resid). */
+static int keep_residuals(const avow_plan *plan, const avow_data *data, mpq_t *fitted, const double *e,
+                          avow_assumptions *A)
+{
+    size_t N = data->nobs, T = plan->ncells;
+    A->resid = avow_calloc(N ? N : 1, sizeof *A->resid);
+    ranked *order = avow_calloc(N ? N : 1, sizeof *order);
+    if (!A->resid || !order) { avow_free(order); return AVOW_ENOMEM; }
+    for (size_t i = 0; i < N; i++) {
+        avow_residual *r = &A->resid[i];
+        size_t c = data->obs[i].cell;
+        r->line = data->obs[i].line;
+        r->cell = c % T;
+        r->block = c / T;
+        r->fitted = dec_mpq_get_d(fitted[c]);
+        r->residual = e[i];
+        order[i] = (ranked){e[i], i};
+    }
+    qsort(order, N, sizeof *order, ranked_cmp);
+    /* Blom (1958): the expected normal order statistic of rank r among N is close to
+     * PhiInv((r - 3/8) / (N + 1/4)). */
+    for (size_t r = 0; r < N; r++)
+        A->resid[order[r].i].normal_score = gsl_cdf_ugaussian_Pinv(((double)(r + 1) - 0.375) / ((double)N + 0.25));
+    avow_free(order);
+    A->nresiduals = N;
+    return AVOW_OK;
+}
+
 int eval_diagnose(const avow_plan *plan, const avow_data *data, mpq_t *fitted, const double *leverage,
                   avow_results *res)
 {
@@ -140,6 +181,10 @@ int eval_diagnose(const avow_plan *plan, const avow_data *data, mpq_t *fitted, c
     if (!e || !A->unusual) { avow_free(e); return AVOW_ENOMEM; }
     int rc = residuals(data, fitted, e);
     if (rc != AVOW_OK) { avow_free(e); return rc; }
+    if (data->residuals) {
+        int krc = keep_residuals(plan, data, fitted, e, A);
+        if (krc != AVOW_OK) { avow_free(e); return krc; }
+    }
 
     /* Equal spread between the treatment cells. */
     cell_groups g;

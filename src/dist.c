@@ -323,6 +323,15 @@ static double t_pdf(double x, const double *df)
     return exp(lc - 0.5 * (nu + 1) * (2 * log(fabs(x)) - log(nu)));
 }
 
+double dist_t_density(double x, double nu)
+{
+    gsl_quiet();
+    if (isnan(x) || !df_ok(nu)) return NAN;
+    if (isinf(x)) return 0;
+    const double df[1] = {nu};
+    return t_pdf(x, df);
+}
+
 /* The t quantile equation Q(x) = p for 0 < p < 1/2 (the quantile is then positive).
  * df holds {nu} and must outlive e. */
 static void t_setup(double p, const double *df, tail_eq *e)

@@ -13,6 +13,7 @@
 #include "avow/plan.h"
 #include "avow/render.h"
 #include "avow/sheet.h"
+#include "avow/svg.h"
 #include "avow/syntax.h"
 
 enum { EXIT_STUDY = 1, EXIT_DATA = 2, EXIT_USAGE = 64 };
@@ -22,7 +23,8 @@ static const char usage_text[] =
     "\n"
     "commands:\n"
     "  check STUDY [--format text|json]   review the plan of a study; reads no data\n"
-    "  run STUDY [--format text|json] [--data FILE] [-o FILE] [--no-diagnostics]\n"
+    "  run STUDY [--format text|json|html] [--data FILE] [-o FILE] [--plots DIR]\n"
+    "      [--no-diagnostics]\n"
     "                                     analyse the data and write the report\n"
     "  sheet STUDY [--seed N] [-o FILE]   lay out the randomized run sheet\n"
     "  fmt STUDY [-w]                     print the canonical form; -w rewrites it\n"
@@ -70,24 +72,33 @@ static const char help_fmt[] =
     "exit status: 0 done, 1 the file has syntax errors, 64 command-line misuse.\n";
 
 static const char help_run[] =
-    "usage: avow run STUDY [--format text|json] [--data FILE] [-o FILE]\n"
-    "                [--no-diagnostics]\n"
+    "usage: avow run STUDY [--format text|json|html] [--data FILE] [-o FILE]\n"
+    "                [--plots DIR] [--no-diagnostics]\n"
     "\n"
     "Checks the study, reads its data file in one pass, and writes the analysis\n"
     "report: the inputs with their SHA-256 digests and row counts, the study file\n"
     "echoed with line numbers, level summaries, the ANOVA table, the planned\n"
     "contrasts with raw and adjusted p-values, intervals and findings,\n"
     "exploratory contrasts, effect sizes, checks of the assumptions with robust\n"
-    "alternatives, and notes. On a terminal, the reading of a data file larger\n"
-    "than 50 MB shows its progress on standard error.\n"
+    "alternatives, and notes. The text report draws the means against their\n"
+    "reference distribution and the intervals of the comparisons in plain\n"
+    "characters. On a terminal, the reading of a data file larger than 50 MB\n"
+    "shows its progress on standard error.\n"
     "\n"
     "  --format text      the report for people (default)\n"
     "  --format json      the report as avow.report/1 JSON\n"
+    "  --format html      the report as one self-contained HTML page with the\n"
+    "                     pictures inline (no script, no external reference;\n"
+    "                     for screens, phones and print)\n"
     "  --data FILE        analyse FILE instead of the study's data file (the\n"
     "                     study's sha256 lock applies to its own file only; the\n"
     "                     report names the file used)\n"
     "  -o FILE            write the report to FILE atomically instead of standard\n"
     "                     output\n"
+    "  --plots DIR        also draw the pictures as SVG files in DIR (made if\n"
+    "                     missing): means.svg, intervals.svg, residuals.svg,\n"
+    "                     probability.svg and spread.svg (the last three need\n"
+    "                     the checks of the assumptions)\n"
     "  --no-diagnostics   skip the checks of the assumptions (they keep every\n"
     "                     value in memory; without them memory stays small for\n"
     "                     any number of rows)\n"
@@ -253,14 +264,17 @@ typedef struct cli_args {
     const char *path;       /* the study file */
     const char *data;       /* --data FILE, or NULL */
     const char *out;        /* -o FILE, or NULL */
+    const char *plots;      /* --plots DIR, or NULL */
     int json;               /* --format json */
+    int html;               /* --format html */
     int write;              /* -w */
     int no_diagnostics;     /* --no-diagnostics */
     int has_seed;           /* --seed was given */
     uint64_t seed;          /* --seed N */
 } cli_args;
 
-enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8, OPT_NODIAG = 16, OPT_SEED = 32 };
+enum { OPT_FORMAT = 1, OPT_DATA = 2, OPT_OUT = 4, OPT_WRITE = 8, OPT_NODIAG = 16, OPT_SEED = 32, OPT_PLOTS = 64,
+       OPT_HTML = 128 };
 
 /* A seed as plain decimal digits, 0 to 2^64 - 1. Returns 1 when s is one. */
 static int parse_seed(const char *s, uint64_t *out)
@@ -286,13 +300,21 @@ static int parse_args(const char *cmd, int argc, char **argv, int allowed, const
         const char *s = argv[i];
         if ((allowed & OPT_FORMAT) && (strcmp(s, "--format") == 0 || strncmp(s, "--format=", 9) == 0)) {
             const char *v = s[8] == '=' ? s + 9 : (i + 1 < argc ? argv[++i] : NULL);
-            if (!v) return usage_error("--format needs a value: text or json%s", "");
+            int html = (allowed & OPT_HTML) != 0;
+            if (!v) return usage_error(html ? "--format needs a value: text, json or html%s"
+                                            : "--format needs a value: text or json%s", "");
+            a->json = a->html = 0;
             if (strcmp(v, "json") == 0) a->json = 1;
-            else if (strcmp(v, "text") == 0) a->json = 0;
-            else return usage_error("unknown format `%s`; the formats are text and json", v);
+            else if (html && strcmp(v, "html") == 0) a->html = 1;
+            else if (strcmp(v, "text") != 0)
+                return usage_error(html ? "unknown format `%s`; the formats are text, json and html"
+                                        : "unknown format `%s`; the formats are text and json", v);
         } else if ((allowed & OPT_DATA) && (strcmp(s, "--data") == 0 || strncmp(s, "--data=", 7) == 0)) {
             a->data = s[6] == '=' ? s + 7 : (i + 1 < argc ? argv[++i] : NULL);
             if (!a->data || !a->data[0]) return usage_error("--data needs a file name%s", "");
+        } else if ((allowed & OPT_PLOTS) && (strcmp(s, "--plots") == 0 || strncmp(s, "--plots=", 8) == 0)) {
+            a->plots = s[7] == '=' ? s + 8 : (i + 1 < argc ? argv[++i] : NULL);
+            if (!a->plots || !a->plots[0]) return usage_error("--plots needs a folder name%s", "");
         } else if ((allowed & OPT_OUT) && strcmp(s, "-o") == 0) {
             a->out = i + 1 < argc ? argv[++i] : NULL;
             if (!a->out || !a->out[0]) return usage_error("-o needs a file name%s", "");
@@ -383,10 +405,58 @@ static char *data_location(const char *study_path, const char *rel)
     return p;
 }
 
+/* --plots DIR: make the folder and write every picture that can be drawn, atomically;
+ * say on standard error which cannot and why. Returns 0, or 1 after printing an error. */
+static int write_pictures(const char *dir, const avow_plan *plan, const avow_results *res)
+{
+    if (avow_mkdirs(dir) != AVOW_OK) {
+        fprintf(stderr, "avow: cannot make the folder %s: %s\n", dir,
+                errno == ENOTDIR ? "a part of the path is not a folder" : strerror(errno));
+        return 1;
+    }
+    size_t dl = strlen(dir);
+    const char *sep = dl && dir[dl - 1] == '/' ? "" : "/";
+    for (int pic = 0; pic < AVOW_PIC_COUNT; pic++) {
+        const char *why = svg_picture_missing(plan, res, (avow_picture)pic);
+        if (why) {
+            /* One line for a run of pictures left out for the same reason. */
+            int last = pic;
+            while (last + 1 < AVOW_PIC_COUNT && svg_picture_missing(plan, res, (avow_picture)(last + 1)) == why)
+                last++;
+            fprintf(stderr, "avow: note: ");
+            for (int k = pic; k <= last; k++)
+                fprintf(stderr, "%s%s", k == pic ? "" : k == last ? " and " : ", ", svg_picture_file((avow_picture)k));
+            fprintf(stderr, " not written: %s\n", why);
+            pic = last;
+            continue;
+        }
+        strbuf svg = {0};
+        render_svg(plan, res, (avow_picture)pic, 1, &svg);
+        char *path = malloc(dl + strlen(sep) + strlen(svg_picture_file((avow_picture)pic)) + 1);
+        if (svg.failed || !path) {
+            fprintf(stderr, "avow: out of memory\n");
+            free(path);
+            sb_free(&svg);
+            return 1;
+        }
+        sprintf(path, "%s%s%s", dir, sep, svg_picture_file((avow_picture)pic));
+        if (avow_write_atomic(path, svg.s ? svg.s : "", svg.len) != AVOW_OK) {
+            fprintf(stderr, "avow: cannot write %s: %s\n", path, strerror(errno));
+            free(path);
+            sb_free(&svg);
+            return 1;
+        }
+        free(path);
+        sb_free(&svg);
+    }
+    return 0;
+}
+
 static int cmd_run(int argc, char **argv)
 {
     cli_args a;
-    int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_DATA | OPT_OUT | OPT_NODIAG, help_run, &a);
+    int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_HTML | OPT_DATA | OPT_OUT | OPT_NODIAG | OPT_PLOTS, help_run,
+                       &a);
     if (r >= 0) return r;
     const char *path = a.path, *data_opt = a.data, *out_path = a.out;
     int json = a.json;
@@ -419,6 +489,7 @@ static int cmd_run(int argc, char **argv)
     memset(&data, 0, sizeof data);
     if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     data.keep = !a.no_diagnostics;
+    data.residuals = data.keep && (a.plots || a.html);
     if (eval_data_init(&data, &plan) != AVOW_OK) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     /* The digest is computed on a second thread while the data are read. */
     eval_hash_job *job = eval_sha256_start(data_path);
@@ -458,7 +529,9 @@ static int cmd_run(int argc, char **argv)
         rc = arc == AVOW_EDOM ? EXIT_DATA : EXIT_STUDY;
         goto done;
     }
+    if (a.plots && write_pictures(a.plots, &plan, &res) != 0) { rc = EXIT_STUDY; goto done; }
     if (json) render_report_json(&ctx, &plan, &res, &out);
+    else if (a.html) render_report_html(&ctx, &plan, &res, &out);
     else render_report_text(&ctx, &plan, &res, &out);
     if (out.failed) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
     if (out_path) {

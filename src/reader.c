@@ -216,9 +216,10 @@ static int keep_obs(avow_data *d, avow_dec v, uint64_t line, size_t cell)
 
 int eval_data_init(avow_data *d, const avow_plan *plan)
 {
-    int keep = d->keep;
+    int keep = d->keep, residuals = d->residuals;
     memset(d, 0, sizeof *d);
     d->keep = keep;
+    d->residuals = residuals;
     d->ncells = plan->ncells;
     d->nblocks = plan->block ? plan->block->nlevels : 1;
     return data_grow(d, d->nblocks ? d->nblocks : 1);

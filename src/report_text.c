@@ -5,6 +5,10 @@
 #include <string.h>
 
 #include "avow/render.h"
+#include "avow/svg.h"
+#include "doc.h"
+#include "plot.h"
+#include "report.h"
 #include "table.h"
 
 /* Most rows of the ANOVA table: every term of eight factors, the block, residual, total. */
@@ -24,12 +28,16 @@ static void fmt_val(char *buf, size_t size, double v)
     snprintf(buf, size, "%.*g", sig, v);
 }
 
-/* Decimals that show the largest magnitude among vals with six significant digits (at
- * least one decimal, at most twelve). One column of a table uses one count. */
-static int column_decimals(const double *vals, size_t n)
+/* The largest finite magnitude seen so far, in *m. */
+static void track(double *m, double v)
 {
-    double m = 0;
-    for (size_t i = 0; i < n; i++) if (isfinite(vals[i]) && fabs(vals[i]) > m) m = fabs(vals[i]);
+    if (isfinite(v) && fabs(v) > *m) *m = fabs(v);
+}
+
+/* Decimals that show a largest magnitude m with six significant digits (at least one
+ * decimal, at most twelve). One column of a table uses one count. */
+static int max_decimals(double m)
+{
     if (m == 0) return 1;
     if (m >= 1e15) return -1;             /* scientific notation for the whole column */
     int lead = (int)floor(log10(m));      /* position of the leading digit */
@@ -37,6 +45,13 @@ static int column_decimals(const double *vals, size_t n)
     if (d < 1) d = 1;
     if (d > 12) d = 12;
     return d;
+}
+
+static int column_decimals(const double *vals, size_t n)
+{
+    double m = 0;
+    for (size_t i = 0; i < n; i++) track(&m, vals[i]);
+    return max_decimals(m);
 }
 
 static void fmt_fixed(char *buf, size_t size, double v, int decimals)
@@ -55,13 +70,6 @@ static void fmt_p(char *buf, size_t size, double p)
     else snprintf(buf, size, "%.4f", p);
 }
 
-static void heading(strbuf *o, const char *title)
-{
-    sb_printf(o, "\n%s\n", title);
-    sb_pad(o, '-', utf8_width(title, strlen(title)));
-    sb_putc(o, '\n');
-}
-
 static const char *method_words(avow_adjust a)
 {
     switch (a) {
@@ -76,8 +84,9 @@ static const char *method_words(avow_adjust a)
 }
 
 /* The study file, verbatim, with line numbers. */
-static void echo_study(const avow_ctx *ctx, strbuf *o)
+static void echo_study(const avow_ctx *ctx, doc *d)
 {
+    strbuf b = {0}, *o = &b;
     for (unsigned l = 1; l <= ctx->nlines; l++) {
         const char *text; size_t len;
         ctx_line_text(ctx, l, &text, &len);
@@ -86,20 +95,20 @@ static void echo_study(const avow_ctx *ctx, strbuf *o)
         sb_put(o, text, len);
         sb_putc(o, '\n');
     }
+    if (b.failed) d->o->failed = 1;
+    doc_pre(d, b.s ? b.s : "", b.len);
+    sb_free(&b);
 }
 
 /* Decimals shared by the estimates, standard errors and interval ends of rs. */
 static int contrast_decimals(const avow_contrast_result *rs, size_t n)
 {
-    double *vals = avow_calloc(4 * n + 1, sizeof *vals);
-    if (!vals) return 4;
+    double m = 0;
     for (size_t i = 0; i < n; i++) {
-        vals[4 * i] = rs[i].estimate; vals[4 * i + 1] = rs[i].se;
-        vals[4 * i + 2] = rs[i].ci_lo; vals[4 * i + 3] = rs[i].ci_hi;
+        track(&m, rs[i].estimate); track(&m, rs[i].se);
+        track(&m, rs[i].ci_lo); track(&m, rs[i].ci_hi);
     }
-    int dec = column_decimals(vals, 4 * n);
-    avow_free(vals);
-    return dec;
+    return max_decimals(m);
 }
 
 static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t n, int conf_pct)
@@ -143,19 +152,15 @@ static const char *mean_name(const avow_plan *p, const plan_explore *e, size_t i
     return p->factors[e->factor].levels[i].name;
 }
 
-static void pair_table(strbuf *o, const avow_plan *p, const plan_explore *e, const avow_pair_result *rs,
+static void pair_table(doc *d, const avow_plan *p, const plan_explore *e, const avow_pair_result *rs,
                        size_t n, int conf, const char *stat)
 {
-    double *vals = avow_calloc(4 * n + 1, sizeof *vals);
-    int dec = 4;
-    if (vals) {
-        for (size_t i = 0; i < n; i++) {
-            vals[4 * i] = rs[i].estimate; vals[4 * i + 1] = rs[i].se;
-            vals[4 * i + 2] = rs[i].ci_lo; vals[4 * i + 3] = rs[i].ci_hi;
-        }
-        dec = column_decimals(vals, 4 * n);
-        avow_free(vals);
+    double mx = 0;
+    for (size_t i = 0; i < n; i++) {
+        track(&mx, rs[i].estimate); track(&mx, rs[i].se);
+        track(&mx, rs[i].ci_lo); track(&mx, rs[i].ci_hi);
     }
+    int dec = max_decimals(mx);
     text_table t;
     table_init(&t, 7, "lrrrrll");
     table_row(&t);
@@ -175,17 +180,17 @@ static void pair_table(strbuf *o, const avow_plan *p, const plan_explore *e, con
         table_cell(&t, 5, "%s to %s", a, b);
         table_cell(&t, 6, "%s", isnan(r->p_adj) ? "not defined" : r->reject ? "differ" : "no difference shown");
     }
-    table_render(&t, 3, o);
+    doc_table(d, &t, 3, 1);
     table_free(&t);
 }
 
 /* Effect sizes of the terms: eta squared, (partial eta squared,) omega squared, f. */
-static void effect_table(strbuf *o, const avow_plan *p, const avow_results *r)
+static void effect_table(doc *d, const avow_plan *p, const avow_results *r)
 {
     int any = 0, multi = p->nfactors > 1 || p->block, ci = 0;
     for (size_t i = 0; i + 2 < r->nanova; i++) { any |= r->effects[i].ok; ci |= r->effects[i].ci_ok; }
     if (!any) return;
-    heading(o, "Effect sizes");
+    doc_heading(d, "effect-sizes", "Effect sizes");
     text_table t;
     size_t nc = (multi ? 5 : 4) + (ci ? 1 : 0);
     table_init(&t, nc, "lrrrrr");
@@ -215,82 +220,114 @@ static void effect_table(strbuf *o, const avow_plan *p, const avow_results *r)
             else table_cell(&t, col++, "-");
         }
     }
-    table_render(&t, 3, o);
+    doc_table(d, &t, 3, 1);
     table_free(&t);
-    sb_puts(o, multi ? "   Eta squared: share of the total sum of squares; partial: of the term plus residual.\n"
+    doc_p(d, "%s", multi ? "   Eta squared: share of the total sum of squares; partial: of the term plus residual.\n"
                        "   Omega squared corrects eta squared for chance and can fall below 0.\n"
                      : "   Eta squared: share of the total sum of squares between levels; omega squared\n"
                        "   corrects it for chance and can fall below 0; f = sqrt(eta^2 / (1 - eta^2)).\n");
 }
 
 /* "W = 0.2288 on 2 and 12 df, p = 0.7989", or why the test was not computed. */
-static void test_line(strbuf *o, const char *what, int rc, const char *stat, double x, double df1, double df2,
+static void test_line(doc *d, const char *what, int rc, const char *stat, double x, double df1, double df2,
                       double pv)
 {
     char a[64], b[64];
-    sb_printf(o, "   %-46s", what);
-    if (rc != AVOW_OK) { sb_printf(o, "not computed: %s\n", dx_status_text(rc)); return; }
+    if (rc != AVOW_OK) { doc_kv(d, what, "not computed: %s", dx_status_text(rc)); return; }
     fmt_val(a, sizeof a, x);
     fmt_p(b, sizeof b, pv);
-    if (isnan(df1)) sb_printf(o, "%s = %s, p = %s\n", stat, a, b);
-    else if (isnan(df2)) sb_printf(o, "%s = %s on %.0f df, p = %s\n", stat, a, df1, b);
-    else if (df2 == floor(df2)) sb_printf(o, "%s = %s on %.0f and %.0f df, p = %s\n", stat, a, df1, df2, b);
-    else sb_printf(o, "%s = %s on %.0f and %.2f df, p = %s\n", stat, a, df1, df2, b);
+    if (isnan(df1)) doc_kv(d, what, "%s = %s, p = %s", stat, a, b);
+    else if (isnan(df2)) doc_kv(d, what, "%s = %s on %.0f df, p = %s", stat, a, df1, b);
+    else if (df2 == floor(df2)) doc_kv(d, what, "%s = %s on %.0f and %.0f df, p = %s", stat, a, df1, df2, b);
+    else doc_kv(d, what, "%s = %s on %.0f and %.2f df, p = %s", stat, a, df1, df2, b);
+}
+
+/* HTML: a picture inline, with its caption as text. */
+static void html_picture(doc *d, const avow_plan *p, const avow_results *r, avow_picture pic)
+{
+    strbuf svg = {0}, cap = {0};
+    render_svg(p, r, pic, 0, &svg);
+    svg_picture_caption(p, r, pic, &cap);
+    if (svg.failed || cap.failed) d->o->failed = 1;
+    doc_figure(d, svg.s ? svg.s : "", svg.len, cap.s);
+    sb_free(&svg);
+    sb_free(&cap);
+}
+
+/* HTML: the pictures of the residuals in a figure each, or why they are not drawn. */
+static void residual_figures(doc *d, const avow_plan *p, const avow_results *r, const avow_picture *pics, size_t n)
+{
+    if (!d->html) return;
+    for (size_t i = 0; i < n; i++) {
+        const char *why = svg_picture_missing(p, r, pics[i]);
+        if (why) {
+            if (i == 0) doc_p(d, "   The pictures of the residuals are not drawn: %s.\n", why);
+            return;
+        }
+        html_picture(d, p, r, pics[i]);
+    }
 }
 
 /* Checks of the assumptions, unusual observations and robust alternatives. */
-static void checks_section(strbuf *o, const avow_plan *p, const avow_results *r)
+static void checks_section(doc *d, const avow_plan *p, const avow_results *r)
 {
     const avow_assumptions *A = &r->checks;
-    char a[64], b[64], c[64];
+    char a[64], b[64];
     double alpha = rat_to_double(p->alpha);
-    heading(o, "Checks of the assumptions");
+    doc_heading(d, "checks", "Checks of the assumptions");
     if (!A->computed) {
-        sb_puts(o, "   Not computed: the run was made with --no-diagnostics, which keeps only the sums.\n");
+        doc_p(d, "   Not computed: the run was made with --no-diagnostics, which keeps only the sums.\n");
+        if (d->html) doc_p(d, "   The pictures of the residuals need these checks too.\n");
         return;
     }
     const char *grp = p->nfactors == 1 ? "levels" : "cells";
-    sb_printf(o, "Equal spread between the %zu %s%s:\n", A->ngroups, grp,
-              A->on_residuals ? " (on the residuals of the model)" : "");
-    test_line(o, "Levene (deviations from the means)", A->levene_rc, "W", A->levene.stat, A->levene.df1,
+    doc_sub(d, "Equal spread between the %zu %s%s:\n", A->ngroups, grp,
+            A->on_residuals ? " (on the residuals of the model)" : "");
+    test_line(d, "Levene (deviations from the means)", A->levene_rc, "W", A->levene.stat, A->levene.df1,
               A->levene.df2, A->levene.p);
-    test_line(o, "Brown-Forsythe (deviations from the medians)", A->bf_rc, "W", A->bf.stat, A->bf.df1, A->bf.df2,
+    test_line(d, "Brown-Forsythe (deviations from the medians)", A->bf_rc, "W", A->bf.stat, A->bf.df1, A->bf.df2,
               A->bf.p);
-    test_line(o, "Bartlett", A->bartlett_rc, "T", A->bartlett.stat, A->bartlett.df, NAN, A->bartlett.p);
+    test_line(d, "Bartlett", A->bartlett_rc, "T", A->bartlett.stat, A->bartlett.df, NAN, A->bartlett.p);
     int spread_bad = (A->levene_rc == AVOW_OK && A->levene.p <= alpha) || (A->bf_rc == AVOW_OK && A->bf.p <= alpha);
     int spread_known = A->levene_rc == AVOW_OK || A->bf_rc == AVOW_OK;
     if (!spread_known)
-        sb_puts(o, "   Verdict: the spread cannot be compared with these data.\n");
+        doc_p(d, "   Verdict: the spread cannot be compared with these data.\n");
     else if (spread_bad)
-        sb_printf(o, "   Verdict: the spread differs between the %s. F and the contrasts assume it does not;\n"
-                     "   %s\n", grp,
-                  A->robust_applies ? "the Welch result below, and `variances separate` for the pairs, are the safer reading."
-                                    : "treat p-values near alpha with care.");
+        doc_p(d, "   Verdict: the spread differs between the %s. F and the contrasts assume it does not;\n"
+                 "   %s\n", grp,
+              A->robust_applies ? "the Welch result below, and `variances separate` for the pairs, are the safer reading."
+                                : "treat p-values near alpha with care.");
     else
-        sb_printf(o, "   Verdict: no sign that the spread differs between the %s.\n", grp);
+        doc_p(d, "   Verdict: no sign that the spread differs between the %s.\n", grp);
+    static const avow_picture spread_pic[] = {AVOW_PIC_SPREAD};
+    residual_figures(d, p, r, spread_pic, 1);
 
-    sb_printf(o, "\nNormal residuals (%zu residuals from the fitted %s):\n", A->nresid,
-              r->fit == FIT_GENERAL ? "model" : p->nfactors == 1 ? "level means" : "cell means");
-    test_line(o, "Shapiro-Wilk (Royston's approximation)", A->shapiro_rc, "W", A->shapiro.w, NAN, NAN, A->shapiro.p);
+    doc_sub(d, "\nNormal residuals (%zu residuals from the fitted %s):\n", A->nresid,
+            r->fit == FIT_GENERAL ? "model" : p->nfactors == 1 ? "level means" : "cell means");
+    test_line(d, "Shapiro-Wilk (Royston's approximation)", A->shapiro_rc, "W", A->shapiro.w, NAN, NAN, A->shapiro.p);
     if (A->moments_rc == AVOW_OK) {
         fmt_val(a, sizeof a, A->moments.skewness);
         fmt_val(b, sizeof b, A->moments.kurtosis);
-        sb_printf(o, "   %-46sskewness %s, excess kurtosis %s\n", "shape", a, b);
+        doc_kv(d, "shape", "skewness %s, excess kurtosis %s", a, b);
     }
     if (A->shapiro_rc == AVOW_OK && A->shapiro.p <= alpha)
-        sb_printf(o, "   Verdict: the residuals depart from a normal shape. Look at the unusual observations;\n"
-                     "   %s\n", A->robust_applies ? "the rank test below does not assume normality."
-                                                     : "treat p-values near alpha with care.");
+        doc_p(d, "   Verdict: the residuals depart from a normal shape. Look at the unusual observations;\n"
+                 "   %s\n", A->robust_applies ? "the rank test below does not assume normality."
+                                                : "treat p-values near alpha with care.");
     else if (A->shapiro_rc == AVOW_OK)
-        sb_puts(o, "   Verdict: no sign that the residuals depart from a normal shape.\n");
+        doc_p(d, "   Verdict: no sign that the residuals depart from a normal shape.\n");
     else
-        sb_puts(o, "   Verdict: normality is not tested with these data.\n");
+        doc_p(d, "   Verdict: normality is not tested with these data.\n");
+    if (svg_picture_missing(p, r, AVOW_PIC_SPREAD) == NULL) {
+        static const avow_picture resid_pics[] = {AVOW_PIC_RESIDUALS, AVOW_PIC_PROBABILITY};
+        residual_figures(d, p, r, resid_pics, 2);
+    }
 
-    sb_printf(o, "\nUnusual observations (externally studentized residual beyond %g):\n", A->unusual_limit);
+    doc_sub(d, "\nUnusual observations (externally studentized residual beyond %g):\n", A->unusual_limit);
     if (A->unusual_rc != AVOW_OK) {
-        sb_printf(o, "   not computed: %s\n", dx_status_text(A->unusual_rc));
+        doc_p(d, "   not computed: %s\n", dx_status_text(A->unusual_rc));
     } else if (!A->nunusual_total) {
-        sb_puts(o, "   none\n");
+        doc_p(d, "   none\n");
     } else {
         text_table t;
         size_t nc = 6 + (r->nblocks ? 1 : 0);
@@ -314,39 +351,37 @@ static void checks_section(strbuf *o, const avow_plan *p, const avow_results *r)
             fmt_val(b, sizeof b, u->residual); table_cell(&t, col++, "%s", b);
             table_cell(&t, col++, "%.2f", u->t);
         }
-        table_render(&t, 3, o);
+        doc_table(d, &t, 3, 1);
         table_free(&t);
         if (A->nunusual_total > A->nunusual)
-            sb_printf(o, "   and %zu more\n", A->nunusual_total - A->nunusual);
-        sb_printf(o, "   Verdict: %zu observation%s stand%s out; check %s against the run records before\n"
-                     "   trusting the analysis (never drop a value only because it is unusual).\n",
-                  A->nunusual_total, A->nunusual_total == 1 ? "" : "s", A->nunusual_total == 1 ? "s" : "",
-                  A->nunusual_total == 1 ? "it" : "them");
+            doc_p(d, "   and %zu more\n", A->nunusual_total - A->nunusual);
+        doc_p(d, "   Verdict: %zu observation%s stand%s out; check %s against the run records before\n"
+                 "   trusting the analysis (never drop a value only because it is unusual).\n",
+              A->nunusual_total, A->nunusual_total == 1 ? "" : "s", A->nunusual_total == 1 ? "s" : "",
+              A->nunusual_total == 1 ? "it" : "them");
     }
 
     if (A->robust_applies) {
-        sb_printf(o, "\nRobust alternatives to the F test of equal %s means:\n", p->nfactors == 1 ? "level" : "cell");
-        test_line(o, "Welch (each group's own variance)", A->welch_rc, "F", A->welch.stat, A->welch.df1,
+        doc_sub(d, "\nRobust alternatives to the F test of equal %s means:\n", p->nfactors == 1 ? "level" : "cell");
+        test_line(d, "Welch (each group's own variance)", A->welch_rc, "F", A->welch.stat, A->welch.df1,
                   A->welch.df2, A->welch.p);
-        test_line(o, "Kruskal-Wallis (ranks, ties corrected)", A->kruskal_rc, "H", A->kruskal.test.stat,
+        test_line(d, "Kruskal-Wallis (ranks, ties corrected)", A->kruskal_rc, "H", A->kruskal.test.stat,
                   A->kruskal.test.df, NAN, A->kruskal.test.p);
         if (p->nfactors > 1)
-            sb_puts(o, "   (These compare the cells as one factor: they test whether any cell differs,\n"
-                       "   not each term of the model.)\n");
-        (void)c;
+            doc_p(d, "   (These compare the cells as one factor: they test whether any cell differs,\n"
+                     "   not each term of the model.)\n");
     } else {
-        sb_puts(o, "\nRobust alternatives: not computed for a study in blocks (they compare groups without\n"
+        doc_sub(d, "\nRobust alternatives: not computed for a study in blocks (they compare groups without\n"
                    "blocks).\n");
     }
 }
 
-void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
+void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_results *r)
 {
     char a[64], b[64], c[64];
     double alpha = rat_to_double(p->alpha);
     int conf = (int)lround((1 - alpha) * 100);
     const char *unit = p->unit ? p->unit : "";
-    sb_printf(o, "avow %s -- analysis report\n\n", AVOW_VERSION);
     text_table t;
     table_init(&t, 2, "ll");
     table_row(&t); table_cell(&t, 0, "study"); table_cell(&t, 1, "%s", p->title);
@@ -370,16 +405,17 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         uint64_t more = r->missing_response + r->missing_level - r->nmissing_lines;
         if (more) sb_printf(&l, " and %llu more", (unsigned long long)more);
         table_row(&t); table_cell(&t, 0, "  missing at lines"); table_cell(&t, 1, "%s", l.s ? l.s : "");
+        if (l.failed) d->o->failed = 1;
         sb_free(&l);
     }
     if (r->blank) {
         table_row(&t); table_cell(&t, 0, "  blank lines"); table_cell(&t, 1, "%llu, skipped", (unsigned long long)r->blank);
     }
-    table_render(&t, 0, o);
+    doc_table(d, &t, 0, 0);
     table_free(&t);
 
-    heading(o, "Study file as read");
-    echo_study(ctx, o);
+    doc_heading(d, "study-file", "Study file as read");
+    echo_study(ctx, d);
 
     strbuf h = {0};
     if (p->nfactors == 1)
@@ -387,7 +423,8 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
                   p->factors[0].name);
     else
         sb_printf(&h, "Summaries of %s%s%s%s by cell", p->response, unit[0] ? " (" : "", unit, unit[0] ? ")" : "");
-    heading(o, h.s ? h.s : "Levels");
+    doc_heading(d, "summaries", h.s ? h.s : "Levels");
+    if (h.failed) d->o->failed = 1;
     sb_free(&h);
     size_t nf = p->nfactors, nc = nf + 5;
     char align[AVOW_MAX_FACTORS + 6];
@@ -399,24 +436,19 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
     else for (size_t f = 0; f < nf; f++) table_cell(&t, f, "%s", p->factors[f].name);
     table_cell(&t, nf, "n"); table_cell(&t, nf + 1, "mean");
     table_cell(&t, nf + 2, "std. dev."); table_cell(&t, nf + 3, "min"); table_cell(&t, nf + 4, "max");
-    double *col = avow_calloc(r->ncells ? r->ncells : 1, sizeof *col);
-    int dmean = 4, dsd = 4;
-    if (col) {
-        for (size_t i = 0; i < r->ncells; i++) col[i] = r->levels[i].mean;
-        dmean = column_decimals(col, r->ncells);
-        for (size_t i = 0; i < r->ncells; i++) col[i] = r->levels[i].sd;
-        dsd = column_decimals(col, r->ncells);
+    int dmean, dsd;
+    {
+        double mmax = 0, smax = 0;
+        for (size_t i = 0; i < r->ncells; i++) { track(&mmax, r->levels[i].mean); track(&smax, r->levels[i].sd); }
+        dmean = max_decimals(mmax);
+        dsd = max_decimals(smax);
         /* Means on a large offset: show as many decimals as the spread needs, but no
-         * more digits than a binary64 number holds (15 significant). */
-        double mmax = 0;
-        for (size_t i = 0; i < r->ncells; i++)
-            if (isfinite(r->levels[i].mean) && fabs(r->levels[i].mean) > mmax) mmax = fabs(r->levels[i].mean);
-        /* (Only when the means dwarf their spread by four orders of magnitude or more.) */
+         * more digits than a binary64 number holds (15 significant).
+         * (Only when the means dwarf their spread by four orders of magnitude or more.) */
         if (dmean >= 0 && dsd >= dmean + 4 && mmax > 0) {
             int room = 14 - (int)floor(log10(mmax));
             dmean = dsd < room ? dsd : room > dmean ? room : dmean;
         }
-        avow_free(col);
     }
     for (size_t i = 0; i < r->ncells; i++) {
         const avow_level_result *L = &r->levels[i];
@@ -429,26 +461,22 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         table_cell(&t, nf + 3, "%s", L->min_text);
         table_cell(&t, nf + 4, "%s", L->max_text);
     }
-    table_render(&t, 3, o);
+    doc_table(d, &t, 3, 1);
     table_free(&t);
     if (p->block)
-        sb_printf(o, "   Cells pool the %zu blocks of `%s`; the standard deviation includes the spread between blocks.\n",
+        doc_p(d, "   Cells pool the %zu blocks of `%s`; the standard deviation includes the spread between blocks.\n",
                   r->nblocks, p->block->name);
 
     if (r->nmargins) {
-        heading(o, "Level means, averaged over the other factors");
+        doc_heading(d, "margins", "Level means, averaged over the other factors");
         table_init(&t, 5, "llrrr");
         table_row(&t);
         table_cell(&t, 0, "factor"); table_cell(&t, 1, "level"); table_cell(&t, 2, "n");
         table_cell(&t, 3, "mean"); table_cell(&t, 4, "std. error");
-        double *mv = avow_calloc(2 * r->nmargins, sizeof *mv);
-        int dm = dmean;
-        if (mv) {
-            for (size_t i = 0; i < r->nmargins; i++) { mv[2 * i] = r->margins[i].mean; mv[2 * i + 1] = r->margins[i].se; }
-            int d2 = column_decimals(mv, 2 * r->nmargins);
-            dm = d2 > dmean ? d2 : dmean;
-            avow_free(mv);
-        }
+        double mv = 0;
+        for (size_t i = 0; i < r->nmargins; i++) { track(&mv, r->margins[i].mean); track(&mv, r->margins[i].se); }
+        int d2 = max_decimals(mv);
+        int dm = d2 > dmean ? d2 : dmean;
         for (size_t i = 0; i < r->nmargins; i++) {
             const avow_margin_result *mr = &r->margins[i];
             table_row(&t);
@@ -458,9 +486,9 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             fmt_fixed(a, sizeof a, mr->mean, dm); table_cell(&t, 3, "%s", a);
             fmt_fixed(a, sizeof a, mr->se, dm); table_cell(&t, 4, "%s", a);
         }
-        table_render(&t, 3, o);
+        doc_table(d, &t, 3, 1);
         table_free(&t);
-        sb_puts(o, r->fit == FIT_GENERAL
+        doc_p(d, "%s", r->fit == FIT_GENERAL
                    ? "   Means of the fitted cells, each level of the other factors weighted equally.\n"
                    : "   Means of the cell means, each level of the other factors weighted equally.\n");
     }
@@ -468,7 +496,8 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         strbuf hb = {0};
         sb_printf(&hb, "Blocks: %s%s%s%s", p->block->name, p->block->label ? " (" : "",
                   p->block->label ? p->block->label : "", p->block->label ? ")" : "");
-        heading(o, hb.s ? hb.s : "Blocks");
+        doc_heading(d, "blocks", hb.s ? hb.s : "Blocks");
+        if (hb.failed) d->o->failed = 1;
         sb_free(&hb);
         table_init(&t, 3, "lrr");
         table_row(&t);
@@ -479,11 +508,11 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             table_cell(&t, 1, "%llu", (unsigned long long)r->blocks[i].n);
             fmt_fixed(a, sizeof a, r->blocks[i].mean, dmean); table_cell(&t, 2, "%s", a);
         }
-        table_render(&t, 3, o);
+        doc_table(d, &t, 3, 1);
         table_free(&t);
     }
 
-    heading(o, "Analysis of variance");
+    doc_heading(d, "anova", "Analysis of variance");
     table_init(&t, 6, "lrrrrr");
     table_row(&t);
     table_cell(&t, 0, "source"); table_cell(&t, 1, "df"); table_cell(&t, 2, "sum of squares");
@@ -504,24 +533,24 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         if (!isnan(A->f)) { fmt_val(a, sizeof a, A->f); table_cell(&t, 4, "%s", a); }
         if (!isnan(A->p)) { fmt_p(a, sizeof a, A->p); table_cell(&t, 5, "%s", a); }
     }
-    table_render(&t, 3, o);
+    doc_table(d, &t, 3, 1);
     table_free(&t);
     fmt_val(a, sizeof a, r->r_squared);
     fmt_val(b, sizeof b, r->resid_sd);
     fmt_val(c, sizeof c, r->grand_mean);
-    sb_printf(o, "   R-squared %s; residual standard deviation %s%s%s; grand mean %s\n", a, b,
+    doc_p(d, "   R-squared %s; residual standard deviation %s%s%s; grand mean %s\n", a, b,
               unit[0] ? " " : "", unit, c);
     if (isnan(r->anova[0].f))
-        sb_puts(o, r->fit == FIT_ONEWAY
+        doc_p(d, "%s", r->fit == FIT_ONEWAY
                    ? "   Every observation equals its level's mean: there is no residual variation, so F\n"
                      "   and the contrast tests are not defined.\n"
                    : "   Every observation equals its fitted value: there is no residual variation, so F\n"
                      "   and the contrast tests are not defined.\n");
     if (p->nfactors > 1 || p->block) {
         if (r->balanced)
-            sb_puts(o, "   Balanced data: every cell has the same number of runs, and the rows add up to the total.\n");
+            doc_p(d, "   Balanced data: every cell has the same number of runs, and the rows add up to the total.\n");
         else
-            sb_puts(o, "   Unbalanced data: each row's sum of squares is adjusted for every other row (a linear\n"
+            doc_p(d, "   Unbalanced data: each row's sum of squares is adjusted for every other row (a linear\n"
                        "   hypothesis on the cell means), so the rows need not add up to the total.\n");
     }
     if (r->fit == FIT_GENERAL && r->df_lof > 0) {
@@ -529,32 +558,43 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
                            : p->block ? "block-by-treatment interaction and the interactions left out"
                            : "interactions left out of the model";
         if (r->df_within == 0)
-            sb_printf(o, "   One run per cell: the residual is the %s (%.0f df),\n"
+            doc_p(d, "   One run per cell: the residual is the %s (%.0f df),\n"
                          "   which the model assumes is noise.\n", left, r->df_lof);
         else
-            sb_printf(o, "   The residual pools %.0f df of replicates within cells and %.0f df of the\n"
+            doc_p(d, "   The residual pools %.0f df of replicates within cells and %.0f df of the\n"
                          "   %s, which the model assumes is noise.\n", r->df_within, r->df_lof, left);
     }
     if (r->empty_cells && p->block)
-        sb_printf(o, "   %zu block-by-treatment cell%s without data; the model still estimates every row.\n",
+        doc_p(d, "   %zu block-by-treatment cell%s without data; the model still estimates every row.\n",
                   r->empty_cells, r->empty_cells == 1 ? " is" : "s are");
     else if (r->empty_cells)
-        sb_printf(o, "   %zu cell%s without data; the model still estimates every row.\n",
+        doc_p(d, "   %zu cell%s without data; the model still estimates every row.\n",
                   r->empty_cells, r->empty_cells == 1 ? " is" : "s are");
 
-    effect_table(o, p, r);
+    effect_table(d, p, r);
+
+    plot_set ps;
+    plot_gather(p, r, &ps);
+    if (ps.failed) d->o->failed = 1;
+    doc_heading(d, "picture-means", "Picture: the means and their reference distribution");
+    if (d->html) {
+        html_picture(d, p, r, AVOW_PIC_MEANS);
+    } else {
+        plot_means_text(&ps, r, d->o);
+    }
 
     if (r->ncontrasts) {
         strbuf hh = {0};
         sb_printf(&hh, "Planned contrasts: %zu, %s at alpha %s", r->ncontrasts, method_words(p->adjust),
                   p->alpha_text);
-        heading(o, hh.s ? hh.s : "Planned contrasts");
+        doc_heading(d, "planned", hh.s ? hh.s : "Planned contrasts");
+        if (hh.failed) d->o->failed = 1;
         sb_free(&hh);
         table_init(&t, 9, "lrrrrrrll");
         contrast_rows(&t, r->contrasts, r->ncontrasts, conf);
-        table_render(&t, 3, o);
+        doc_table(d, &t, 3, 1);
         table_free(&t);
-        sb_putc(o, '\n');
+        doc_blank(d);
         int dec = contrast_decimals(r->contrasts, r->ncontrasts);
         for (size_t i = 0; i < r->ncontrasts; i++) {
             const avow_contrast_result *x = &r->contrasts[i];
@@ -563,32 +603,37 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             fmt_fixed(lo, sizeof lo, x->ci_lo, dec);
             fmt_fixed(hi, sizeof hi, x->ci_hi, dec);
             fmt_p(b, sizeof b, x->p_adj);
-            sb_printf(o, "   %s = %s%s\n", x->pc->name, x->pc->expr,
-                      x->pc->side == SIDE_GREATER ? " > 0" : x->pc->side == SIDE_LESS ? " < 0" : "");
-            if (x->pc->desc) sb_printf(o, "      \"%s\"\n", x->pc->desc);
-            sb_printf(o, "      estimate %s%s%s, %d%% interval ", a, unit[0] ? " " : "", unit, conf);
-            if (x->pc->side == SIDE_GREATER) sb_printf(o, "above %s", lo);
-            else if (x->pc->side == SIDE_LESS) sb_printf(o, "below %s", hi);
-            else sb_printf(o, "%s to %s", lo, hi);
-            sb_printf(o, " (%s)\n", x->ci_simultaneous ? "simultaneous" : "per comparison");
+            doc_p(d, "   %s = %s%s\n", x->pc->name, x->pc->expr,
+                  x->pc->side == SIDE_GREATER ? " > 0" : x->pc->side == SIDE_LESS ? " < 0" : "");
+            if (x->pc->desc) doc_p(d, "      \"%s\"\n", x->pc->desc);
+            strbuf el = {0};
+            sb_printf(&el, "      estimate %s%s%s, %d%% interval ", a, unit[0] ? " " : "", unit, conf);
+            if (x->pc->side == SIDE_GREATER) sb_printf(&el, "above %s", lo);
+            else if (x->pc->side == SIDE_LESS) sb_printf(&el, "below %s", hi);
+            else sb_printf(&el, "%s to %s", lo, hi);
+            sb_printf(&el, " (%s)\n", x->ci_simultaneous ? "simultaneous" : "per comparison");
+            if (el.failed) d->o->failed = 1;
+            doc_p(d, "%s", el.s ? el.s : "");
+            sb_free(&el);
             if (isfinite(x->std_effect))
-                sb_printf(o, "      standardized effect %.3f (estimate / residual standard deviation)\n", x->std_effect);
+                doc_p(d, "      standardized effect %.3f (estimate / residual standard deviation)\n", x->std_effect);
             if (isnan(x->p_adj)) {
-                sb_puts(o, "      no test: without residual variation the contrast has no standard error.\n");
+                doc_p(d, "      no test: without residual variation the contrast has no standard error.\n");
                 continue;
             }
-            sb_printf(o, "      adjusted p %s %s %s: ", b, x->reject ? "<=" : ">", p->alpha_text);
+            const char *dir = x->pc->side == SIDE_GREATER ? "above" : "below";
             if (x->pc->side == SIDE_TWO)
-                sb_puts(o, x->reject ? "the data show a difference.\n"
-                                     : "the data do not show a difference at this level.\n");
+                doc_p(d, "      adjusted p %s %s %s: %s", b, x->reject ? "<=" : ">", p->alpha_text,
+                      x->reject ? "the data show a difference.\n" : "the data do not show a difference at this level.\n");
+            else if (x->reject)
+                doc_p(d, "      adjusted p %s <= %s: the data show it %s 0, as declared.\n", b, p->alpha_text, dir);
             else
-                sb_printf(o, x->reject ? "the data show it %s 0, as declared.\n"
-                                       : "the data do not show it %s 0 at this level.\n",
-                          x->pc->side == SIDE_GREATER ? "above" : "below");
+                doc_p(d, "      adjusted p %s > %s: the data do not show it %s 0 at this level.\n", b, p->alpha_text,
+                      dir);
         }
     }
     if (r->nexplore_sets) {
-        heading(o, "Exploratory comparisons (after seeing the data; adjusted, simultaneous intervals)");
+        doc_heading(d, "exploratory", "Exploratory comparisons (after seeing the data; adjusted, simultaneous intervals)");
         for (size_t i = 0; i < r->nexplore_sets; i++) {
             const avow_explore_result *er = &r->explore_sets[i];
             const plan_explore *e = er->set;
@@ -605,31 +650,32 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
                           p->factors[e->within].levels[er->slice].name);
             else if (e->factor >= 0 && p->nfactors > 1)
                 sb_puts(&where, ", averaged over the other factors");
-            if (i) sb_putc(o, '\n');
+            const char *gap = i ? "\n" : "";
             if (e->kind == EXPLORE_PAIRS && p->separate_variances) {
-                sb_printf(o, "Every pair of %s%s, Games-Howell: each %s own variance, studentized range\n"
-                             "for %zu means with Welch-Satterthwaite df for each pair\n",
-                          whats.s ? whats.s : "", where.s ? where.s : "", p->nfactors == 1 ? "level's" : "cell's", er->k);
-                pair_table(o, p, e, er->pairs, er->npairs, conf, "q");
+                doc_sub(d, "%sEvery pair of %s%s, Games-Howell: each %s own variance, studentized range\n"
+                           "for %zu means with Welch-Satterthwaite df for each pair\n",
+                        gap, whats.s ? whats.s : "", where.s ? where.s : "", p->nfactors == 1 ? "level's" : "cell's", er->k);
+                pair_table(d, p, e, er->pairs, er->npairs, conf, "q");
             } else if (e->kind == EXPLORE_PAIRS) {
                 fmt_val(a, sizeof a, er->crit);
                 if (where.len)
-                    sb_printf(o, "Every pair of %s%s;\nTukey-Kramer: studentized range for %zu means and %.0f df, "
-                                 "upper %s point %s\n", whats.s ? whats.s : "", where.s, er->k,
+                    doc_sub(d, "%sEvery pair of %s%s;\nTukey-Kramer: studentized range for %zu means and %.0f df, "
+                               "upper %s point %s\n", gap, whats.s ? whats.s : "", where.s, er->k,
                               r->anova[r->nanova - 2].df, p->alpha_text, a);
                 else
-                    sb_printf(o, "Every pair of %s, Tukey-Kramer: studentized range for %zu means and %.0f df,\n"
-                                 "upper %s point %s\n", whats.s ? whats.s : "", er->k,
+                    doc_sub(d, "%sEvery pair of %s, Tukey-Kramer: studentized range for %zu means and %.0f df,\n"
+                               "upper %s point %s\n", gap, whats.s ? whats.s : "", er->k,
                               r->anova[r->nanova - 2].df, p->alpha_text, a);
-                pair_table(o, p, e, er->pairs, er->npairs, conf, "q");
+                pair_table(d, p, e, er->pairs, er->npairs, conf, "q");
             } else {
                 fmt_val(a, sizeof a, er->crit);
-                sb_printf(o, "Each %s against %s%s%sDunnett (two-sided): critical |t| %s\n", what.s ? what.s : "",
+                doc_sub(d, "%sEach %s against %s%s%sDunnett (two-sided): critical |t| %s\n", gap, what.s ? what.s : "",
                           mean_name(p, e, e->control), where.s ? where.s : "", where.len ? ";\n" : ", ", a);
                 if (er->approximate)
-                    sb_puts(o, "(approximate: with these data the means are correlated beyond Dunnett's product form)\n");
-                pair_table(o, p, e, er->pairs, er->npairs, conf, "|t|");
+                    doc_p(d, "(approximate: with these data the means are correlated beyond Dunnett's product form)\n");
+                pair_table(d, p, e, er->pairs, er->npairs, conf, "|t|");
             }
+            if (what.failed || whats.failed || where.failed) d->o->failed = 1;
             sb_free(&what);
             sb_free(&whats);
             sb_free(&where);
@@ -637,52 +683,62 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         int sliced = 0;
         for (size_t i = 0; i < r->nexplore_sets; i++) sliced |= r->explore_sets[i].slice >= 0;
         if (sliced)
-            sb_puts(o, "Comparisons within a level of another factor are adjusted within that level.\n");
+            doc_p(d, "Comparisons within a level of another factor are adjusted within that level.\n");
     }
     if (r->nexplores) {
-        heading(o, "Exploratory contrasts (chosen after seeing data; Scheffe, simultaneous)");
+        doc_heading(d, "exploratory-contrasts", "Exploratory contrasts (chosen after seeing data; Scheffe, simultaneous)");
         table_init(&t, 9, "lrrrrrrll");
         contrast_rows(&t, r->explores, r->nexplores, conf);
-        table_render(&t, 3, o);
+        doc_table(d, &t, 3, 1);
         table_free(&t);
-        sb_putc(o, '\n');
+        doc_blank(d);
         for (size_t i = 0; i < r->nexplores; i++)
-            sb_printf(o, "   %s = %s\n", r->explores[i].pc->name, r->explores[i].pc->expr);
+            doc_p(d, "   %s = %s\n", r->explores[i].pc->name, r->explores[i].pc->expr);
     }
 
-    checks_section(o, p, r);
+    if (ps.nintervals) {
+        doc_heading(d, "picture-intervals", "Picture: the comparisons and their intervals");
+        if (d->html) {
+            html_picture(d, p, r, AVOW_PIC_INTERVALS);
+        } else {
+            plot_intervals_text(&ps, d->o);
+        }
+    }
+    plot_set_free(&ps);
 
-    heading(o, "Notes");
+    checks_section(d, p, r);
+
+    doc_heading(d, "notes", "Notes");
     if (r->inexact_values)
-        sb_printf(o, "- %llu value%s had more digits than exact arithmetic holds (18 significant digits);\n"
+        doc_note(d, NULL, "%llu value%s had more digits than exact arithmetic holds (18 significant digits);\n"
                      "  they entered as the nearest binary64 number with compensated (double-double) sums.\n"
                      "  Every other value was taken exactly from its decimal text.\n",
                   (unsigned long long)r->inexact_values, r->inexact_values == 1 ? "" : "s");
     else
-        sb_puts(o, "- Every value was taken exactly from its decimal text; sums of squares, means and\n"
+        doc_note(d, NULL, "Every value was taken exactly from its decimal text; sums of squares, means and\n"
                    "  contrast estimates are exact fractions, rounded once for display.\n");
     if (r->ncontrasts) {
         switch (p->adjust) {
         case ADJ_NONE:
             if (r->ncontrasts == 1)
-                sb_printf(o, "- One planned contrast, tested at %s: there is nothing to adjust.\n", p->alpha_text);
+                doc_note(d, NULL, "One planned contrast, tested at %s: there is nothing to adjust.\n", p->alpha_text);
             else
-                sb_printf(o, "- No adjustment: each contrast is tested at %s on its own; nothing bounds the chance\n"
+                doc_note(d, NULL, "No adjustment: each contrast is tested at %s on its own; nothing bounds the chance\n"
                              "  of at least one false finding among the %zu. Intervals are per comparison.\n",
                           p->alpha_text, r->ncontrasts);
             break;
         case ADJ_BONFERRONI: case ADJ_SIDAK: case ADJ_SCHEFFE:
-            sb_printf(o, "- %s controls the chance of any false finding among the planned contrasts at %s.\n"
+            doc_note(d, NULL, "%s controls the chance of any false finding among the planned contrasts at %s.\n"
                          "  Its intervals are simultaneous: all of them hold together with %d%% confidence.\n",
                       method_words(p->adjust), p->alpha_text, conf);
             break;
         case ADJ_HOLM:
-            sb_printf(o, "- Holm's step-down method controls the chance of any false finding among the planned\n"
+            doc_note(d, NULL, "Holm's step-down method controls the chance of any false finding among the planned\n"
                          "  contrasts at %s. It defines no simultaneous interval: the intervals shown are per\n"
                          "  comparison, at %d%% each.\n", p->alpha_text, conf);
             break;
         case ADJ_FDR:
-            sb_printf(o, "- The Benjamini-Hochberg method controls the expected share of false findings among\n"
+            doc_note(d, NULL, "The Benjamini-Hochberg method controls the expected share of false findings among\n"
                          "  the findings at %s, not the chance of any. Intervals are per comparison, at %d%% each.\n",
                       p->alpha_text, conf);
             break;
@@ -690,25 +746,34 @@ void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_resu
         if (r->complete_set) {
             fmt_val(a, sizeof a, r->contrast_ss_sum);
             fmt_val(b, sizeof b, r->fit == FIT_ONEWAY ? r->anova[0].ss : r->ss_cells);
-            sb_printf(o, "- The %zu planned contrasts are mutually orthogonal with the replicates obtained, so their\n"
+            doc_note(d, NULL, "The %zu planned contrasts are mutually orthogonal with the replicates obtained, so their\n"
                          "  sums of squares add up to the between-%s sum of squares: %s = %s.\n",
                       r->ncontrasts, r->fit == FIT_ONEWAY ? "levels" : "cells", a, b);
         } else if (r->ncontrasts > 1 && !r->orthogonal_set && r->fit != FIT_GENERAL) {
-            sb_puts(o, "- The planned contrasts are not all orthogonal with the replicates obtained: their tests\n"
+            doc_note(d, NULL, "The planned contrasts are not all orthogonal with the replicates obtained: their tests\n"
                        "  share information and their sums of squares do not split the between-levels sum.\n");
         }
         if (p->separate_variances && r->fit != FIT_GENERAL)
-            sb_puts(o, "- Under `variances separate` each planned contrast's standard error comes from each\n"
-                       "  level's own variance, with Welch-Satterthwaite degrees of freedom.\n");
+            doc_note(d, NULL, "Under `variances separate` each planned contrast's standard error comes from each\n"
+                         "  level's own variance, with Welch-Satterthwaite degrees of freedom.\n");
         int one = 0;
         for (size_t i = 0; i < r->ncontrasts; i++) one |= r->contrasts[i].pc->side != SIDE_TWO;
         if (one)
-            sb_puts(o, "- One-sided contrasts use the one-sided p-value in their declared direction and a\n"
+            doc_note(d, NULL, "One-sided contrasts use the one-sided p-value in their declared direction and a\n"
                        "  one-sided interval.\n");
     }
     if (r->nexplore_sets || r->nexplores)
-        sb_puts(o, "- Exploratory comparisons were chosen after seeing the data or as a screen of every\n"
+        doc_note(d, NULL, "Exploratory comparisons were chosen after seeing the data or as a screen of every\n"
                    "  difference; they are adjusted for the whole set they belong to, and their findings\n"
                    "  are leads to confirm in a new study, not conclusions.\n");
-    sb_printf(o, "- %s\n", AVOW_CAUTION_WRAPPED);
+    doc_note(d, "caution", "%s\n", AVOW_CAUTION_WRAPPED);
+    doc_finish(d);
+}
+
+void render_report_text(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
+{
+    sb_printf(o, "avow %s -- analysis report\n\n", AVOW_VERSION);
+    doc d;
+    doc_init(&d, o, 0);
+    report_body(&d, ctx, p, r);
 }

@@ -10,14 +10,16 @@
 
 static long fail_at = -1;   /* allocation index that starts failing; -1 = never */
 static long alloc_count;    /* allocations since the hook was set */
+static int fail_once;       /* only allocation fail_at fails */
 
 static int should_fail(void)
 {
     long i = alloc_count++;
-    return fail_at >= 0 && i >= fail_at;
+    return fail_at >= 0 && (fail_once ? i == fail_at : i >= fail_at);
 }
 
-void avow_mem_fail_after(long n) { fail_at = n; alloc_count = 0; }
+void avow_mem_fail_after(long n) { fail_at = n; alloc_count = 0; fail_once = 0; }
+void avow_mem_fail_only(long n) { fail_at = n; alloc_count = 0; fail_once = 1; }
 long avow_mem_count(void) { return alloc_count; }
 
 void *avow_malloc(size_t n) { return should_fail() ? NULL : malloc(n ? n : 1); }
@@ -220,4 +222,36 @@ int avow_write_atomic(const char *path, const char *bytes, size_t len)
     avow_free(tmp);
     errno = e;
     return AVOW_EIO;
+}
+
+int avow_mkdirs(const char *path)
+{
+    size_t n = strlen(path);
+    if (n == 0) { errno = ENOENT; return AVOW_EIO; }
+    char *p = avow_malloc(n + 1);
+    if (!p) return AVOW_ENOMEM;
+    memcpy(p, path, n + 1);
+    /* Each prefix that ends before a slash, then the whole path. */
+    for (size_t i = 1; i <= n; i++) {
+        if (i < n && p[i] != '/') continue;
+        if (i < n && p[i - 1] == '/') continue;
+        char c = p[i];
+        p[i] = 0;
+        struct stat st;
+        if (stat(p, &st) != 0) {
+            if (errno != ENOENT || (mkdir(p, 0777) != 0 && errno != EEXIST)) {
+                int e = errno;
+                avow_free(p);
+                errno = e;
+                return AVOW_EIO;
+            }
+        } else if (!S_ISDIR(st.st_mode)) {
+            avow_free(p);
+            errno = ENOTDIR;
+            return AVOW_EIO;
+        }
+        p[i] = c;
+    }
+    avow_free(p);
+    return AVOW_OK;
 }

@@ -41,12 +41,12 @@ complete_case "coating.avow cure.avow plans plans.d" avow check ""
 complete_case "cure.avow" avow run cu
 complete_case "plans/field.avow" avow fmt plans/
 complete_case "--format --help" avow check cure.avow ""
-complete_case "--data --format --help --no-diagnostics -o" avow run cure.avow ""
+complete_case "--data --format --help --no-diagnostics --plots -o" avow run cure.avow ""
 complete_case "--help --seed -o" avow sheet cure.avow ""
 complete_case "--help -w" avow fmt cure.avow ""
 # options of each command
 complete_case "--format --help" avow check -
-complete_case "--data --format --help --no-diagnostics -o" avow run -
+complete_case "--data --format --help --no-diagnostics --plots -o" avow run -
 complete_case "--no-diagnostics" avow run cure.avow --no
 complete_case "--help --seed -o" avow sheet -
 complete_case "--help -w" avow fmt -
@@ -55,7 +55,9 @@ complete_case "" avow check cure.avow -o
 # option values
 complete_case "json text" avow check cure.avow --format ""
 complete_case "json" avow run --format j
-complete_case "json text" avow run cure.avow --format = ""
+complete_case "html json text" avow run cure.avow --format = ""
+complete_case "html" avow run cure.avow --format h
+complete_case "" avow check cure.avow --format h
 complete_case "text" avow run cure.avow --format = t
 complete_case "--format=json" avow check cure.avow --format=j
 complete_case "coating.avow cure.avow cure.csv notes.txt plans plans.d" avow run cure.avow --data ""
@@ -67,7 +69,7 @@ complete_case "" avow sheet cure.avow --seed ""
 complete_case "coating.avow cure.avow plans plans.d" avow run --format json ""
 complete_case "coating.avow cure.avow plans plans.d" avow run --data cure.csv ""
 complete_case "coating.avow cure.avow plans plans.d" avow run --format = json ""
-complete_case "--data --format --help --no-diagnostics -o" avow run --format = json cure.avow ""
+complete_case "--data --format --help --no-diagnostics --plots -o" avow run --format = json cure.avow ""
 # not a command
 complete_case "" avow frobnicate ""
 echo "completion: $pass passed, $fail failed"

@@ -33,6 +33,10 @@ double dist_t_q(double t, double nu);
  * The result lies in [0, 1]. */
 double dist_t_p2(double t, double nu);
 
+/* Density of Student's t with nu degrees of freedom at x (gsl_ran_tdist_pdf; through
+ * logarithms where x^2 would overflow). NaN for NaN x or a bad nu; 0 at +-inf. */
+double dist_t_density(double x, double nu);
+
 /* Upper-tail quantile of F(d1, d2): *x such that dist_f_q(*x, d1, d2) = p.
  * p must lie in the open interval (0, 1). Closed form when d1 = 2. Otherwise GSL's
  * gsl_cdf_fdist_Qinv is tried first and its answer is kept only when finite and

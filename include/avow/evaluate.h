@@ -45,6 +45,8 @@ typedef struct avow_obs {
 
 typedef struct avow_data {
     int keep;               /* keep every observation (set by the caller before reading) */
+    int residuals;          /* with keep: also give each observation's fitted value and
+                               residual in the results (checks.resid), for the pictures */
     avow_obs *obs;          /* the observations in file order, when keep */
     size_t nobs, obscap;
     avow_acc *acc;          /* nblocks * ncells accumulators */

@@ -26,6 +26,10 @@ void render_plan_json(const avow_ctx *ctx, const avow_plan *plan, int ok, strbuf
  * study file's context (its bytes are echoed in the text report). */
 void render_report_text(const avow_ctx *ctx, const avow_plan *plan, const avow_results *res, strbuf *out);
 void render_report_json(const avow_ctx *ctx, const avow_plan *plan, const avow_results *res, strbuf *out);
+/* The same report as one self-contained HTML page: the text report's sections, tables,
+ * notes and caution, the pictures inline as SVG (svg.h), one stylesheet for screens,
+ * narrow screens and print; no script and no external reference. */
+void render_report_html(const avow_ctx *ctx, const avow_plan *plan, const avow_results *res, strbuf *out);
 
 /* The canonical form of a study file, comments kept. */
 void fmt_study(const avow_ctx *ctx, const ast_study *study, strbuf *out);

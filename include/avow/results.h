@@ -87,6 +87,19 @@ typedef struct avow_unusual {
 /* Most unusual observations listed one by one. */
 #define AVOW_MAX_LISTED_UNUSUAL 20
 
+/* One observation's place in the fitted model, for the pictures of the residuals
+ * (kept only when avow_data.residuals is set). */
+typedef struct avow_residual {
+    uint64_t line;          /* in the data file */
+    size_t cell;            /* treatment cell */
+    size_t block;           /* block (0 without one) */
+    double fitted;          /* the model's fitted value, exact and rounded once */
+    double residual;        /* value - fitted, exact and rounded once */
+    double normal_score;    /* the expected standard normal value at its rank among all the
+                               residuals: Blom's position, PhiInv((r - 3/8) / (N + 1/4)),
+                               ties ranked in file order */
+} avow_residual;
+
 /* Checks of the assumptions and robust alternatives (computed from the kept values). */
 typedef struct avow_assumptions {
     int computed;           /* the values were kept (not --no-diagnostics) */
@@ -108,7 +121,32 @@ typedef struct avow_assumptions {
     int welch_rc, kruskal_rc;
     avow_dx_ftest welch;
     avow_dx_kw kruskal;
+    avow_residual *resid;   /* every observation in file order (avow_data.residuals), or NULL */
+    size_t nresiduals;
 } avow_assumptions;
+
+/* Points on which the reference curve of a set of means is drawn. */
+#define AVOW_CURVE_POINTS 161
+/* The curve spans this many scale units either side of its centre. */
+#define AVOW_CURVE_SPAN 4.0
+
+/* The reference distribution of a set of means for the pictures: the t distribution
+ * with the residual df, scaled by the standard error of one mean. A mean of n runs has
+ * standard error resid_sd / sqrt(n); with unequal n the scale takes the harmonic mean of
+ * the n (for marginal means the effective n, MSE / se^2), so that scale^2 is the average
+ * squared standard error. Sliding the curve along the axis, means that cannot sit under
+ * it together differ by more than the noise explains. */
+typedef struct avow_reference {
+    int ok;                 /* the curve exists (residual df > 0 and MSE > 0) */
+    size_t k;               /* means behind it */
+    double n_h;             /* harmonic mean of their n (effective n for marginal means) */
+    int equal_n;            /* every mean has the same n */
+    double scale;           /* resid_sd / sqrt(n_h) */
+    double df;              /* residual degrees of freedom */
+    double centre;          /* where it is drawn: the grand mean (or the factor's average) */
+    double x[AVOW_CURVE_POINTS];      /* centre + u scale, u evenly from -SPAN to SPAN */
+    double height[AVOW_CURVE_POINTS]; /* t density at u relative to its peak (1 at u = 0) */
+} avow_reference;
 
 /* One exploratory comparison of two means (all pairs, or a level against the control). */
 typedef struct avow_pair_result {
@@ -170,6 +208,11 @@ typedef struct avow_results {
     size_t nmargins;
     avow_block_result *blocks;  /* with a block: every block */
     size_t nblocks;
+
+    /* reference distributions of the means, for the pictures */
+    avow_reference ref_cells;   /* of the treatment cell (level) means */
+    avow_reference ref_margins[AVOW_MAX_FACTORS]; /* several factors: of each factor's
+                                   marginal means */
 
     /* the model */
     avow_fit fit;

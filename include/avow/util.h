@@ -24,6 +24,9 @@ void avow_free(void *p);
 /* Test hook: allocation number n (0-based, counted from this call) and every later one
  * fail; n < 0 turns the hook off. */
 void avow_mem_fail_after(long n);
+/* Test hook: only allocation n (0-based, counted from this call) fails; n < 0 turns the
+ * hook off. */
+void avow_mem_fail_only(long n);
 /* Number of allocations made since the last avow_mem_fail_after call. */
 long avow_mem_count(void);
 
@@ -62,5 +65,8 @@ int utf8_seq_len(const unsigned char *s, size_t n);
 int avow_read_file(const char *path, char **out, size_t *len, size_t limit);
 /* Write bytes to path atomically: a temporary file beside it, then rename. */
 int avow_write_atomic(const char *path, const char *bytes, size_t len);
+/* Make a folder and any missing parents (an existing folder is fine). Returns AVOW_OK,
+ * AVOW_ENOMEM or AVOW_EIO (errno kept; ENOTDIR when a part is not a folder). */
+int avow_mkdirs(const char *path);
 
 #endif
