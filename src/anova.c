@@ -1005,8 +1005,9 @@ int eval_analyse(const avow_plan *plan, const avow_data *data, avow_results *res
         res->r_squared = NAN;
     }
 
-    /* Marginal means of every level (several factors). */
-    if (plan->nfactors > 1) {
+    /* Marginal means of every level (several factors; with a block, the level means
+     * adjusted for the blocks). */
+    if (plan->nfactors > 1 || plan->block) {
         size_t nm = 0;
         for (size_t f = 0; f < plan->nfactors; f++) nm += plan->factors[f].nlevels;
         res->margins = avow_calloc(nm, sizeof *res->margins);

@@ -194,8 +194,8 @@ void plot_gather(const avow_plan *p, const avow_results *r, plot_set *s)
     for (size_t f = 0, i = 0; r->nmargins && f < p->nfactors; f++) {
         plot_means_panel *mf = &s->means[s->nmeans++];
         const plan_factor *pf = &p->factors[f];
-        mf->title = dupf(s, "%s%s%s, averaged over the other factors", pf->name, pf->label ? ": " : "",
-                         pf->label ? pf->label : "");
+        mf->title = dupf(s, "%s%s%s, %s", pf->name, pf->label ? ": " : "", pf->label ? pf->label : "",
+                         p->nfactors > 1 ? "averaged over the other factors" : "adjusted for the blocks");
         mf->ref = &r->ref_margins[f];
         mf->short_name = dupf(s, "%s", pf->name);
         mf->margins = 1;

@@ -250,7 +250,18 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             sb_putc(o, '}');
         }
     }
-    sb_puts(o, "\n  ],\n  \"cells\": [");
+    sb_puts(o, "\n  ],\n  \"margins\": [");
+    for (size_t i = 0; i < r->nmargins; i++) {
+        const avow_margin_result *mr = &r->margins[i];
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        key(o, "factor"); json_string(o, p->factors[mr->factor].name);
+        sb_puts(o, ", "); key(o, "level"); json_string(o, p->factors[mr->factor].levels[mr->level].name);
+        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)mr->n);
+        key(o, "mean"); num17(o, mr->mean);
+        sb_puts(o, ", "); key(o, "se"); num17(o, mr->se);
+        sb_putc(o, '}');
+    }
+    sb_puts(o, r->nmargins ? "\n  ],\n  \"cells\": [" : "],\n  \"cells\": [");
     for (size_t i = 0; i < r->ncells; i++) {
         const avow_level_result *L = &r->levels[i];
         sb_puts(o, i ? ",\n    {" : "\n    {");

@@ -468,7 +468,8 @@ void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_res
                   r->nblocks, p->block->name);
 
     if (r->nmargins) {
-        doc_heading(d, "margins", "Level means, averaged over the other factors");
+        doc_heading(d, "margins", p->nfactors > 1 ? "Level means, averaged over the other factors"
+                                                  : "Level means, adjusted for the blocks");
         table_init(&t, 5, "llrrr");
         table_row(&t);
         table_cell(&t, 0, "factor"); table_cell(&t, 1, "level"); table_cell(&t, 2, "n");
@@ -488,7 +489,10 @@ void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_res
         }
         doc_table(d, &t, 3, 1);
         table_free(&t);
-        doc_p(d, "%s", r->fit == FIT_GENERAL
+        doc_p(d, "%s", p->nfactors == 1
+                   ? "   Means of the fitted cells, each block weighted equally: the level means the\n"
+                     "   comparisons use.\n"
+                   : r->fit == FIT_GENERAL
                    ? "   Means of the fitted cells, each level of the other factors weighted equally.\n"
                    : "   Means of the cell means, each level of the other factors weighted equally.\n");
     }

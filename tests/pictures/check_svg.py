@@ -113,14 +113,14 @@ def parse(path):
 
 def expected_means(rep):
     """Panels of the means picture: the cells, then each factor's marginal means."""
+    """(with a block, one factor's level means adjusted for the blocks: the margins)"""
     panels = [[(c["cell"], c["mean"], c["n"]) for c in rep["cells"]]]
-    if len(rep["cells"][0]["levels"]) > 1:
-        factors = []
-        for lv in rep["levels"]:
-            if lv["factor"] not in factors:
-                factors.append(lv["factor"])
-        for f in factors:
-            panels.append([(lv["level"], lv["mean"], lv["se"]) for lv in rep["levels"] if lv["factor"] == f])
+    factors = []
+    for lv in rep["margins"]:
+        if lv["factor"] not in factors:
+            factors.append(lv["factor"])
+    for f in factors:
+        panels.append([(lv["level"], lv["mean"], lv["se"]) for lv in rep["margins"] if lv["factor"] == f])
     return panels
 
 
