@@ -193,6 +193,21 @@ static void checks_json(strbuf *o, const avow_plan *p, const avow_results *r)
     sb_puts(o, "},\n");
 }
 
+/* The marginal means (model-based): factor, level, n, mean, se. */
+static void margins_json(strbuf *o, const avow_plan *p, const avow_results *r)
+{
+    for (size_t i = 0; i < r->nmargins; i++) {
+        const avow_margin_result *mr = &r->margins[i];
+        sb_puts(o, i ? ",\n    {" : "\n    {");
+        key(o, "factor"); json_string(o, p->factors[mr->factor].name);
+        sb_puts(o, ", "); key(o, "level"); json_string(o, p->factors[mr->factor].levels[mr->level].name);
+        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)mr->n);
+        key(o, "mean"); num17(o, mr->mean);
+        sb_puts(o, ", "); key(o, "se"); num17(o, mr->se);
+        sb_putc(o, '}');
+    }
+}
+
 void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_results *r, strbuf *o)
 {
     (void)ctx;
@@ -238,29 +253,10 @@ void render_report_json(const avow_ctx *ctx, const avow_plan *p, const avow_resu
             sb_putc(o, '}');
         }
     } else {
-        /* Several factors: each level's marginal mean (model-based). */
-        for (size_t i = 0; i < r->nmargins; i++) {
-            const avow_margin_result *mr = &r->margins[i];
-            sb_puts(o, i ? ",\n    {" : "\n    {");
-            key(o, "factor"); json_string(o, p->factors[mr->factor].name);
-            sb_puts(o, ", "); key(o, "level"); json_string(o, p->factors[mr->factor].levels[mr->level].name);
-            sb_printf(o, ", \"n\": %llu, ", (unsigned long long)mr->n);
-            key(o, "mean"); num17(o, mr->mean);
-            sb_puts(o, ", "); key(o, "se"); num17(o, mr->se);
-            sb_putc(o, '}');
-        }
+        margins_json(o, p, r);      /* several factors: each level's marginal mean */
     }
     sb_puts(o, "\n  ],\n  \"margins\": [");
-    for (size_t i = 0; i < r->nmargins; i++) {
-        const avow_margin_result *mr = &r->margins[i];
-        sb_puts(o, i ? ",\n    {" : "\n    {");
-        key(o, "factor"); json_string(o, p->factors[mr->factor].name);
-        sb_puts(o, ", "); key(o, "level"); json_string(o, p->factors[mr->factor].levels[mr->level].name);
-        sb_printf(o, ", \"n\": %llu, ", (unsigned long long)mr->n);
-        key(o, "mean"); num17(o, mr->mean);
-        sb_puts(o, ", "); key(o, "se"); num17(o, mr->se);
-        sb_putc(o, '}');
-    }
+    margins_json(o, p, r);
     sb_puts(o, r->nmargins ? "\n  ],\n  \"cells\": [" : "],\n  \"cells\": [");
     for (size_t i = 0; i < r->ncells; i++) {
         const avow_level_result *L = &r->levels[i];
