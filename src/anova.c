@@ -532,12 +532,12 @@ static int explore_versus(const model *M, const avow_results *res, avow_explore_
     size_t k = er->k, T = M->T, c0 = er->set->control, p = k - 1;
     er->pairs = avow_calloc(p ? p : 1, sizeof *er->pairs);
     double *lambda = avow_calloc(p ? p : 1, sizeof *lambda);
-    mpq_t *vec = xla_alloc(k * T), *zero = xla_alloc(T);
+    mpq_t *vec = xla_alloc(k * T);
     mpq_t *vf = xla_alloc(k);
     mpq_t est, cov;
     mpq_init(est); mpq_init(cov);
     int rc = AVOW_OK;
-    if (!er->pairs || !lambda || !vec || !zero || !vf) { rc = AVOW_ENOMEM; goto out; }
+    if (!er->pairs || !lambda || !vec || !vf) { rc = AVOW_ENOMEM; goto out; }
     for (size_t l = 0; l < k; l++) {
         explore_vector(P, er->set, er->slice, l, &vec[l * T]);
         model_contrast(M, &vec[l * T], est, vf[l]);
@@ -571,7 +571,7 @@ static int explore_versus(const model *M, const avow_results *res, avow_explore_
     er->npairs = p;
 out:
     avow_free(lambda);
-    xla_free(vec, k * T); xla_free(zero, T); xla_free(vf, k);
+    xla_free(vec, k * T); xla_free(vf, k);
     mpq_clear(est); mpq_clear(cov);
     return rc;
 }
