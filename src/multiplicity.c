@@ -146,3 +146,16 @@ int mult_reject(avow_adjust method, const double *p_adj, size_t m, double alpha,
     for (size_t i = 0; i < m; i++) reject[i] = p_adj[i] <= alpha;
     return AVOW_OK;
 }
+
+const char *mult_words(avow_adjust method)
+{
+    switch (method) {
+    case ADJ_NONE: return "no adjustment";
+    case ADJ_BONFERRONI: return "Bonferroni";
+    case ADJ_HOLM: return "Holm step-down";
+    case ADJ_SIDAK: return "Sidak";
+    case ADJ_SCHEFFE: return "Scheffe";
+    case ADJ_FDR: return "Benjamini-Hochberg (false discovery rate)";
+    }
+    return "?";
+}

@@ -111,19 +111,6 @@ static char *dupf(plot_set *s, const char *fmt, ...)
     return b.s;
 }
 
-static const char *method_words(avow_adjust a)
-{
-    switch (a) {
-    case ADJ_NONE: return "no adjustment";
-    case ADJ_BONFERRONI: return "Bonferroni";
-    case ADJ_HOLM: return "Holm step-down";
-    case ADJ_SIDAK: return "Sidak";
-    case ADJ_SCHEFFE: return "Scheffe";
-    case ADJ_FDR: return "Benjamini-Hochberg";
-    }
-    return "?";
-}
-
 static const char *mean_name(const avow_plan *p, const plan_explore *e, size_t i)
 {
     if (e->factor < 0) return plan_cell_name(p, i);
@@ -219,7 +206,7 @@ void plot_gather(const avow_plan *p, const avow_results *r, plot_set *s)
         plot_interval_panel *ip = &s->intervals[s->nintervals++];
         ip->planned = 1;
         int simultaneous = r->contrasts[0].ci_simultaneous;
-        ip->title = dupf(s, "Planned contrasts, %s: %d%% intervals%s", method_words(p->adjust), s->conf,
+        ip->title = dupf(s, "Planned contrasts, %s: %d%% intervals%s", mult_words(p->adjust), s->conf,
                          simultaneous ? ", simultaneous" : " per comparison");
         add_contrasts(s, ip, r->contrasts, r->ncontrasts);
     }

@@ -70,19 +70,6 @@ static void fmt_p(char *buf, size_t size, double p)
     else snprintf(buf, size, "%.4f", p);
 }
 
-static const char *method_words(avow_adjust a)
-{
-    switch (a) {
-    case ADJ_NONE: return "no adjustment";
-    case ADJ_BONFERRONI: return "Bonferroni";
-    case ADJ_HOLM: return "Holm step-down";
-    case ADJ_SIDAK: return "Sidak";
-    case ADJ_SCHEFFE: return "Scheffe";
-    case ADJ_FDR: return "Benjamini-Hochberg (false discovery rate)";
-    }
-    return "?";
-}
-
 /* The study file, verbatim, with line numbers. */
 static void echo_study(const avow_ctx *ctx, doc *d)
 {
@@ -589,7 +576,7 @@ void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_res
 
     if (r->ncontrasts) {
         strbuf hh = {0};
-        sb_printf(&hh, "Planned contrasts: %zu, %s at alpha %s", r->ncontrasts, method_words(p->adjust),
+        sb_printf(&hh, "Planned contrasts: %zu, %s at alpha %s", r->ncontrasts, mult_words(p->adjust),
                   p->alpha_text);
         doc_heading(d, "planned", hh.s ? hh.s : "Planned contrasts");
         if (hh.failed) d->o->failed = 1;
@@ -734,7 +721,7 @@ void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_res
         case ADJ_BONFERRONI: case ADJ_SIDAK: case ADJ_SCHEFFE:
             doc_note(d, NULL, "%s controls the chance of any false finding among the planned contrasts at %s.\n"
                          "  Its intervals are simultaneous: all of them hold together with %d%% confidence.\n",
-                      method_words(p->adjust), p->alpha_text, conf);
+                      mult_words(p->adjust), p->alpha_text, conf);
             break;
         case ADJ_HOLM:
             doc_note(d, NULL, "Holm's step-down method controls the chance of any false finding among the planned\n"

@@ -32,6 +32,10 @@ typedef enum {
  * "scheffe", "fdr". NULL for a value outside the enum. */
 const char *mult_name(avow_adjust method);
 
+/* The method in words for reports ("Holm step-down", "Benjamini-Hochberg (false
+ * discovery rate)"). */
+const char *mult_words(avow_adjust method);
+
 /* Look up a method by its exact (case-sensitive) name: s holds len bytes, not
  * necessarily NUL-terminated. Returns 0 and sets *out, or AVOW_EDOM (out untouched)
  * for an unknown name or NULL arguments. */
