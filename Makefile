@@ -6,6 +6,8 @@
 #   make sanitize   AddressSanitizer + UndefinedBehaviorSanitizer build running every test
 #   make install    install under PREFIX (default /usr/local; DESTDIR for staging)
 #   make uninstall  remove exactly what make install put there
+#   make fuzz       libFuzzer harnesses (clang), FUZZ_SECONDS each (default 60), then the
+#                   regression inputs replayed (tests/fuzz/README.md)
 #   make clean      remove build/
 
 CC       ?= cc
@@ -27,7 +29,12 @@ TOOLBIN  := $(patsubst tests/tools/%.c,$(B)/tests/tools/%,$(TOOLSRC))
 DEPSOK   := $(B)/.deps-ok
 DEPSTEST := $(B)/.deps-test-ok
 
-.PHONY: all check demo sanitize clean deps unit install uninstall
+# Fuzz harnesses (tests/fuzz/fuzz_NAME.c): replayed without libFuzzer by `check`.
+FUZZNAMES  := study data run
+FUZZREPLAY := $(patsubst %,$(B)/tests/fuzz/replay-%,$(FUZZNAMES))
+FUZZHDR    := tests/fuzz/fuzz_common.h
+
+.PHONY: all check demo sanitize clean deps unit install uninstall fuzz fuzzers
 all: $(B)/avow
 
 deps: $(DEPSOK)
@@ -80,9 +87,20 @@ $(B)/tests/tools/%: tests/tools/%.c $(B)/libavow.a
 	@mkdir -p $(B)/tests/tools
 	$(CC) $(CFLAGS_ALL) -o $@ $< $(B)/libavow.a $(LDLIBS_ALL)
 
+# The fuzz harnesses with a plain main() that runs each input file once (tests/fuzz/replay.c).
+$(B)/tests/fuzz/replay-%: tests/fuzz/fuzz_%.c tests/fuzz/replay.c $(FUZZHDR) $(B)/libavow.a
+	@mkdir -p $(B)/tests/fuzz
+	$(CC) $(CFLAGS_ALL) -o $@ tests/fuzz/replay.c $< $(B)/libavow.a $(LDLIBS_ALL)
+
+# The libFuzzer binaries; built by `make fuzz` in build/fuzz with clang (see below).
+$(B)/fuzz-%: tests/fuzz/fuzz_%.c $(FUZZHDR) $(B)/libavow.a
+	$(CC) $(CFLAGS_ALL) -fsanitize=fuzzer -o $@ $< $(B)/libavow.a $(LDLIBS_ALL)
+
+fuzzers: $(patsubst %,$(B)/fuzz-%,$(FUZZNAMES))
+
 unit: $(UNITBIN)
 
-check: $(B)/avow $(UNITBIN) $(TOOLBIN) | $(DEPSTEST)
+check: $(B)/avow $(UNITBIN) $(TOOLBIN) $(FUZZREPLAY) | $(DEPSTEST)
 	@sh tests/run-all.sh $(B)
 
 demo: $(B)/avow
@@ -96,6 +114,15 @@ demo: $(B)/avow
 sanitize:
 	$(MAKE) B=build/sanitize OPT=-O1 \
 	  SANFLAGS="-fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer" check
+
+# libFuzzer with AddressSanitizer and UndefinedBehaviorSanitizer: the library built by
+# clang into build/fuzz, each harness run for FUZZ_SECONDS, then the regression inputs.
+FUZZ_SECONDS ?= 60
+fuzz:
+	@sh mk/deps.sh fuzz
+	$(MAKE) B=build/fuzz CC=clang OPT=-O1 \
+	  SANFLAGS="-fsanitize=fuzzer-no-link,address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer" fuzzers
+	sh tests/fuzz/run.sh build/fuzz $(FUZZ_SECONDS) $(FUZZNAMES)
 
 clean:
 	rm -rf build

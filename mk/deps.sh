@@ -9,14 +9,24 @@
 #   manual lint:      groff-base (groff -man -ww)
 #   editor files:     vim (syntax, indent), emacs-nox (byte-compiles avow-mode.el),
 #                     nodejs and npm (the TextMate grammar, tokenized by vscode-textmate)
+#   sh mk/deps.sh        what `make` and `make check` need
 #   sh mk/deps.sh test   adds what only `make check` needs: headless Chromium, its
 #                        driver and Python's selenium, for the browser test of the
 #                        HTML report (tests/browser.sh)
+#   sh mk/deps.sh fuzz   adds clang with its libFuzzer and sanitizer runtimes (`make fuzz`)
+#   sh mk/deps.sh ci     adds all of the above and valgrind (.ci/run)
 set -u
 packages="re2c lemon libgsl-dev libcmocka-dev libssl-dev libgmp-dev python3-scipy python3-numpy python3-mpmath make gcc
 pkg-config groff-base vim emacs-nox"
 test_packages="chromium chromium-driver python3-selenium"
-[ "${1:-}" = test ] && packages="$packages $test_packages"
+fuzz_packages="clang libclang-rt-14-dev"
+case "${1:-}" in
+    "") ;;
+    test) packages="$packages $test_packages" ;;
+    fuzz) packages="$packages $fuzz_packages" ;;
+    ci) packages="$packages $test_packages $fuzz_packages valgrind" ;;
+    *) echo "usage: sh mk/deps.sh [test|fuzz|ci]" >&2; exit 64 ;;
+esac
 # Checked by command rather than by package: Node.js from another source (one package
 # that provides npm) serves as well as Debian's nodejs and npm.
 commands="node:nodejs npm:npm"

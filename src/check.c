@@ -167,8 +167,8 @@ static void check_factor_levels(checker *ck, const ast_stmt *s, plan_factor *f)
     for (const ast_level *l = s->levels; l; l = l->next) n++;
     int too_many = n > AVOW_MAX_LEVELS;
     if (too_many) {
-        ctx_error(ck->ctx, s->name.span, "factor `%s` has %zu levels; at most %d are supported",
-                  s->name.s, n, AVOW_MAX_LEVELS);
+        ctx_error(ck->ctx, s->name.span, "%s `%s` has %zu levels; at most %d are supported",
+                  s->kind == ST_BLOCK ? "block" : "factor", s->name.s, n, AVOW_MAX_LEVELS);
         n = 0;
     }
     f->name = s->name.s;
@@ -187,8 +187,8 @@ static void check_factor_levels(checker *ck, const ast_stmt *s, plan_factor *f)
         }
         for (size_t j = 0; j < k; j++) {
             if (name_eq(l->name.s, l->name.len, f->levels[j].name)) {
-                avow_diag *d = ctx_error(ck->ctx, l->name.span, "level `%s` is declared twice in factor `%s`",
-                                         l->name.s, f->name);
+                avow_diag *d = ctx_error(ck->ctx, l->name.span, "level `%s` is declared twice in %s `%s`",
+                                         l->name.s, s->kind == ST_BLOCK ? "block" : "factor", f->name);
                 diag_related(ck->ctx, d, decl[j]->name.span, "first declared here");
                 dup = 1;
             }

@@ -61,6 +61,12 @@ void fmt_name(const char *s, size_t len, int force_quote, strbuf *out)
 
 static void put_name(const ast_name *n, strbuf *out) { fmt_name(n->s, n->len, 0, out); }
 
+/* 1 when put_name writes n as a string (whether or not the source quoted it). */
+static int printed_quoted(const ast_name *n)
+{
+    return !is_ident(n->s, n->len) || lex_is_keyword_text(n->s, n->len);
+}
+
 static void put_num(const ast_num *n, strbuf *out)
 {
     if (n->neg) sb_putc(out, '-');
@@ -98,7 +104,13 @@ static void put_expr(const ast_expr *e, int ctx_prec, int right, strbuf *out)
         break;
     case EX_NEG:
         sb_putc(out, '-');
-        if (e->lhs->kind == EX_NEG || prec(e->lhs) < 3) {
+        /* A negation of a negation is written "- -x": parentheses here would be ones the
+         * source did not need, and a long chain of them would pass the nesting limit
+         * that the source kept to, so that the formatted file would not parse. */
+        if (e->lhs->kind == EX_NEG) {
+            sb_putc(out, ' ');
+            put_expr(e->lhs, 3, 0, out);
+        } else if (prec(e->lhs) < 3) {
             sb_putc(out, '('); put_expr(e->lhs, 0, 0, out); sb_putc(out, ')');
         } else put_expr(e->lhs, 3, 0, out);
         break;
@@ -175,10 +187,11 @@ static void end_line(fmt_state *fs, uint32_t end)
     fs->last_end = end;
     if (fs->ci < ctx->ncomments) {
         const avow_comment *c = &ctx->comments[fs->ci];
-        /* Only blanks between: the comment trails this construct, not a later one. */
+        /* Only blanks between (or the comma after a level, which the formatter writes
+         * there itself): the comment trails this construct, not a later one. */
         int same = c->span.start >= end;
         for (uint32_t i = end; same && i < c->span.start; i++)
-            if (ctx->src[i] != ' ' && ctx->src[i] != '\t') same = 0;
+            if (ctx->src[i] != ' ' && ctx->src[i] != '\t' && ctx->src[i] != ',') same = 0;
         if (same) {
             sb_putc(fs->out, ACOMMENT);
             put_comment_text(fs, c);
@@ -226,8 +239,9 @@ static void put_level(fmt_state *fs, const ast_level *l)
 {
     strbuf *o = fs->out;
     /* Without a description, a following level named by a string would read as one:
-     * a comma right after the level's last part keeps them apart. */
-    int comma = !l->desc && l->next && l->next->name.quoted;
+     * a comma right after the level's last part keeps them apart. What counts is how
+     * the next name is written here, not in the source ("x" is written x). */
+    int comma = !l->desc && l->next && printed_quoted(&l->next->name);
     begin_line(fs, l->span.start, l->span.end, 1, 'L');
     put_name(&l->name, o);
     if (comma && !l->at.text && !l->code) sb_putc(o, ',');

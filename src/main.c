@@ -1,7 +1,6 @@
 /* main.c: the avow command. A thin driver over libavow: parses the command line, runs
  * the stages, prints diagnostics and writes output. The only place that prints. */
 #include <errno.h>
-#include <stdarg.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -12,6 +11,7 @@
 #include "avow/evaluate.h"
 #include "avow/plan.h"
 #include "avow/render.h"
+#include "avow/run.h"
 #include "avow/sheet.h"
 #include "avow/svg.h"
 #include "avow/syntax.h"
@@ -166,35 +166,21 @@ static void decide_terminal_manners(void)
                        ? DIAG_COLOUR : DIAG_PLAIN;
 }
 
-/* Write diagnostic text that is rendered plain (the data reader's messages, the
- * driver's own `FILE: error:` lines) to standard error, styled for the terminal. */
-static void put_diag_text(const char *text, size_t len)
+/* Write b to path atomically; prints the reason and returns nonzero on failure. */
+static int write_file(const char *path, const strbuf *b)
 {
-    if (!len) return;
-    if (stderr_style == DIAG_PLAIN) { fwrite(text, 1, len, stderr); return; }
-    strbuf b = {0};
-    diag_paint(text, len, stderr_style, &b);
-    if (b.failed) fwrite(text, 1, len, stderr);
-    else fwrite(b.s, 1, b.len, stderr);
-    sb_free(&b);
+    int rc = avow_write_atomic(path, b->s ? b->s : "", b->len);
+    if (rc == AVOW_ENOMEM) fprintf(stderr, "avow: out of memory\n");
+    else if (rc) fprintf(stderr, "avow: cannot write %s: %s\n", path, strerror(errno));
+    return rc;
 }
 
-/* printf a plain diagnostic to standard error through put_diag_text. */
-static void diag_printf(const char *fmt, ...)
-#if defined(__GNUC__)
-    __attribute__((format(printf, 1, 2)))
-#endif
-    ;
-static void diag_printf(const char *fmt, ...)
+/* Write a library message buffer (already styled for standard error) to standard
+ * error; when it could not be built, memory ran out. */
+static void write_messages(const strbuf *m)
 {
-    strbuf m = {0};
-    va_list ap;
-    va_start(ap, fmt);
-    sb_vprintf(&m, fmt, ap);
-    va_end(ap);
-    if (m.failed) fprintf(stderr, "avow: out of memory\n");
-    else put_diag_text(m.s, m.len);
-    sb_free(&m);
+    if (m->failed) fputs("avow: out of memory\n", stderr);
+    else if (m->len) fwrite(m->s, 1, m->len, stderr);
 }
 
 static void print_diags(const avow_ctx *ctx)
@@ -249,14 +235,11 @@ static void progress_erase(progress_line *p)
 /* Load a study file into ctx; prints the reason and returns nonzero on failure. */
 static int load(avow_ctx *ctx, const char *path)
 {
-    int rc = ctx_load(ctx, path);
-    if (rc == AVOW_ENOMEM) { fprintf(stderr, "avow: out of memory reading %s\n", path); return 1; }
-    if (rc) {
-        fprintf(stderr, "avow: cannot read %s: %s\n", path,
-                errno == EFBIG ? "larger than the 16 MiB a study file may have" : strerror(errno));
-        return 1;
-    }
-    return 0;
+    strbuf m = {0};
+    int rc = avow_load_study(ctx, path, &m);
+    write_messages(&m);
+    sb_free(&m);
+    return rc;
 }
 
 /* Options of a command line, after the command word. */
@@ -353,16 +336,10 @@ static int parse_args(const char *cmd, int argc, char **argv, int allowed, const
 static int load_checked(const char *path, avow_ctx *ctx, ast_study *study, avow_plan *plan)
 {
     if (load(ctx, path)) return -1;
-    memset(plan, 0, sizeof *plan);
-    plan->path = path;
-    int ok = parse_study(ctx, study) == 0;
-    if (ok) ok = check_study(ctx, study, plan) == 0;
-    if (ctx->oom) {
-        fprintf(stderr, "avow: out of memory\n");
-        ctx_free(ctx);
-        return -1;
-    }
-    print_diags(ctx);
+    strbuf m = {0};
+    int ok = avow_check_loaded(ctx, study, plan, stderr_style, &m);
+    write_messages(&m);
+    sb_free(&m);
     return ok;
 }
 
@@ -392,22 +369,10 @@ static int cmd_check(int argc, char **argv)
     return rc;
 }
 
-/* The data file's path: --data as given, or the study's, relative to the study's folder. */
-static char *data_location(const char *study_path, const char *rel)
-{
-    if (rel[0] == '/') return strdup(rel);
-    const char *slash = strrchr(study_path, '/');
-    size_t dir = slash ? (size_t)(slash - study_path) + 1 : 0;
-    char *p = malloc(dir + strlen(rel) + 1);
-    if (!p) return NULL;
-    memcpy(p, study_path, dir);
-    strcpy(p + dir, rel);
-    return p;
-}
-
-/* --plots DIR: make the folder and write every picture that can be drawn, atomically;
- * say on standard error which cannot and why. Returns 0, or 1 after printing an error. */
-static int write_pictures(const char *dir, const avow_plan *plan, const avow_results *res)
+/* --plots DIR: make the folder and write the pictures the run drew, atomically; say on
+ * standard error which could not be drawn and why. Returns 0, or 1 after printing an
+ * error. */
+static int write_pictures(const char *dir, const avow_run_result *res)
 {
     if (avow_mkdirs(dir) != AVOW_OK) {
         fprintf(stderr, "avow: cannot make the folder %s: %s\n", dir,
@@ -417,12 +382,11 @@ static int write_pictures(const char *dir, const avow_plan *plan, const avow_res
     size_t dl = strlen(dir);
     const char *sep = dl && dir[dl - 1] == '/' ? "" : "/";
     for (int pic = 0; pic < AVOW_PIC_COUNT; pic++) {
-        const char *why = svg_picture_missing(plan, res, (avow_picture)pic);
+        const char *why = res->picture_missing[pic];
         if (why) {
             /* One line for a run of pictures left out for the same reason. */
             int last = pic;
-            while (last + 1 < AVOW_PIC_COUNT && svg_picture_missing(plan, res, (avow_picture)(last + 1)) == why)
-                last++;
+            while (last + 1 < AVOW_PIC_COUNT && res->picture_missing[last + 1] == why) last++;
             fprintf(stderr, "avow: note: ");
             for (int k = pic; k <= last; k++)
                 fprintf(stderr, "%s%s", k == pic ? "" : k == last ? " and " : ", ", svg_picture_file((avow_picture)k));
@@ -430,24 +394,16 @@ static int write_pictures(const char *dir, const avow_plan *plan, const avow_res
             pic = last;
             continue;
         }
-        strbuf svg = {0};
-        render_svg(plan, res, (avow_picture)pic, 1, &svg);
-        char *path = malloc(dl + strlen(sep) + strlen(svg_picture_file((avow_picture)pic)) + 1);
-        if (svg.failed || !path) {
+        const char *file = svg_picture_file((avow_picture)pic);
+        char *path = malloc(dl + strlen(sep) + strlen(file) + 1);
+        if (!path) {
             fprintf(stderr, "avow: out of memory\n");
-            free(path);
-            sb_free(&svg);
             return 1;
         }
-        sprintf(path, "%s%s%s", dir, sep, svg_picture_file((avow_picture)pic));
-        if (avow_write_atomic(path, svg.s ? svg.s : "", svg.len) != AVOW_OK) {
-            fprintf(stderr, "avow: cannot write %s: %s\n", path, strerror(errno));
-            free(path);
-            sb_free(&svg);
-            return 1;
-        }
+        sprintf(path, "%s%s%s", dir, sep, file);
+        int rc = write_file(path, &res->pictures[pic]);
         free(path);
-        sb_free(&svg);
+        if (rc) return 1;
     }
     return 0;
 }
@@ -458,97 +414,22 @@ static int cmd_run(int argc, char **argv)
     int r = parse_args("run", argc, argv, OPT_FORMAT | OPT_HTML | OPT_DATA | OPT_OUT | OPT_NODIAG | OPT_PLOTS, help_run,
                        &a);
     if (r >= 0) return r;
-    const char *path = a.path, *data_opt = a.data, *out_path = a.out;
-    int json = a.json;
-    avow_ctx ctx;
-    ast_study study;
-    avow_plan plan;
-    int ok = load_checked(path, &ctx, &study, &plan);
-    if (ok < 0) return EXIT_STUDY;
-    if (!ok) {
-        fprintf(stderr, "%s: %zu error%s, %zu warning%s; nothing was analysed\n", path, ctx.nerrors,
-                ctx.nerrors == 1 ? "" : "s", ctx.nwarnings, ctx.nwarnings == 1 ? "" : "s");
-        ctx_free(&ctx);
-        return EXIT_STUDY;
-    }
-    if (!data_opt && !plan.has_data) {
-        fprintf(stderr, "avow: %s names no data file: add a `data` statement or give --data FILE\n", path);
-        ctx_free(&ctx);
-        return EXIT_DATA;
-    }
-    avow_results res;
-    memset(&res, 0, sizeof res);
-    char *data_path = data_opt ? strdup(data_opt) : data_location(path, plan.data_path);
-    res.data_path = data_path;
-    res.data_shown = data_opt ? data_opt : plan.data_path;
-    res.data_from_option = data_opt != NULL;
-    eval_sha256_bytes(ctx.src, ctx.len, res.study_sha256);
-    int rc = 0;
-    strbuf errs = {0}, out = {0};
-    avow_data data;
-    memset(&data, 0, sizeof data);
-    if (!data_path) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    data.keep = !a.no_diagnostics;
-    data.residuals = data.keep && (a.plots || a.html);
-    if (eval_data_init(&data, &plan) != AVOW_OK) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    /* The digest is computed on a second thread while the data are read. */
-    eval_hash_job *job = eval_sha256_start(data_path);
     progress_line bar = {0};
     avow_progress progress = {progress_show, &bar};
-    size_t nerr = eval_read(&plan, data_path, data_path, &data, &res, &errs, stderr_is_tty ? &progress : NULL);
+    avow_run_opts o = {.study_path = a.path, .data_path = a.data, .json = a.json, .html = a.html,
+                       .pictures = a.plots != NULL, .no_diagnostics = a.no_diagnostics,
+                       .style = stderr_style, .progress = stderr_is_tty ? &progress : NULL};
+    avow_run_result res;
+    int rc = avow_run(&o, &res);
     progress_erase(&bar);
-    int hrc = eval_sha256_join(job, res.data_sha256);
-    if (hrc != AVOW_OK) {
-        if (hrc == AVOW_ENOMEM) fprintf(stderr, "avow: out of memory\n");
-        else diag_printf("%s: error: cannot read the data file: %s\n", data_path, strerror(errno));
-        rc = hrc == AVOW_ENOMEM ? EXIT_STUDY : EXIT_DATA;
-        goto done;
+    write_messages(&res.messages);
+    if (rc == 0 && a.plots && write_pictures(a.plots, &res) != 0) rc = EXIT_STUDY;
+    if (rc == 0 && a.out) {
+        if (write_file(a.out, &res.report)) rc = EXIT_STUDY;
+    } else if (rc == 0) {
+        write_stdout(&res.report);
     }
-    if (plan.sha256 && !data_opt && strcmp(plan.sha256, res.data_sha256) != 0) {
-        diag_printf("%s: error: the data file has changed since the study locked it\n"
-                    "  sha256 locked in the study: %s\n  sha256 of the file now:     %s\n"
-                    "  hint: if the change is intended, update the `sha256` line of the data block\n",
-                    data_path, plan.sha256, res.data_sha256);
-        rc = EXIT_DATA;
-        goto done;
-    }
-    if (nerr != 0) {
-        put_diag_text(errs.s, errs.len);
-        fprintf(stderr, "avow: the data do not fit the study; no report was written\n");
-        rc = EXIT_DATA;
-        goto done;
-    }
-    int arc = eval_analyse(&plan, &data, &res, &errs);
-    if (arc != AVOW_OK) {
-        if (errs.len) {
-            diag_printf("%s: error: %.*s", data_path, (int)errs.len, errs.s);
-            fprintf(stderr, "avow: no report was written\n");
-        } else {
-            fprintf(stderr, "avow: out of memory\n");
-        }
-        rc = arc == AVOW_EDOM ? EXIT_DATA : EXIT_STUDY;
-        goto done;
-    }
-    if (a.plots && write_pictures(a.plots, &plan, &res) != 0) { rc = EXIT_STUDY; goto done; }
-    if (json) render_report_json(&ctx, &plan, &res, &out);
-    else if (a.html) render_report_html(&ctx, &plan, &res, &out);
-    else render_report_text(&ctx, &plan, &res, &out);
-    if (out.failed) { fprintf(stderr, "avow: out of memory\n"); rc = EXIT_STUDY; goto done; }
-    if (out_path) {
-        if (avow_write_atomic(out_path, out.s, out.len) != AVOW_OK) {
-            fprintf(stderr, "avow: cannot write %s: %s\n", out_path, strerror(errno));
-            rc = EXIT_STUDY;
-        }
-    } else {
-        write_stdout(&out);
-    }
-done:
-    eval_data_free(&data);
-    free(data_path);
-    eval_results_free(&res);
-    sb_free(&errs);
-    sb_free(&out);
-    ctx_free(&ctx);
+    avow_run_free(&res);
     return rc;
 }
 
@@ -591,10 +472,7 @@ static int cmd_sheet(int argc, char **argv)
             fprintf(stderr, "avow: out of memory\n");
             rc = EXIT_STUDY;
         } else if (a.out) {
-            if (avow_write_atomic(a.out, out.s, out.len) != AVOW_OK) {
-                fprintf(stderr, "avow: cannot write %s: %s\n", a.out, strerror(errno));
-                rc = EXIT_STUDY;
-            }
+            if (write_file(a.out, &out)) rc = EXIT_STUDY;
         } else {
             write_stdout(&out);
         }
@@ -630,10 +508,7 @@ static int cmd_fmt(int argc, char **argv)
     } else if (!write) {
         write_stdout(&out);
     } else if (out.len != ctx.len || memcmp(out.s ? out.s : "", ctx.src, out.len) != 0) {
-        if (avow_write_atomic(path, out.s ? out.s : "", out.len)) {
-            fprintf(stderr, "avow: cannot write %s: %s\n", path, strerror(errno));
-            rc = EXIT_STUDY;
-        }
+        if (write_file(path, &out)) rc = EXIT_STUDY;
     }
     sb_free(&out);
     ctx_free(&ctx);

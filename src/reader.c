@@ -37,19 +37,31 @@ void eval_sha256_bytes(const void *bytes, size_t len, char *hex)
     to_hex(md, hex);
 }
 
-int eval_sha256_file(const char *path, char *hex)
+/* 1 for what avow reads as a file: a regular file, or a folder (whose read fails with
+ * EISDIR). Devices, pipes and sockets are refused: /dev/zero would never end, and a
+ * pipe cannot be read twice (by the hash and by the reader). */
+static int is_file_like(mode_t m) { return S_ISREG(m) || S_ISDIR(m); }
+
+/* The digest of the file at path, read through buf (size bytes). */
+#define HASH_BLOCK (1 << 20)
+static int sha256_file_with(const char *path, unsigned char *buf, size_t size, char *hex)
 {
     int fd = open(path, O_RDONLY);
     if (fd < 0) return AVOW_EIO;
+    struct stat st;
+    if (fstat(fd, &st) == 0 && !is_file_like(st.st_mode)) {
+        close(fd);
+        errno = ENODEV;
+        return AVOW_EIO;
+    }
     EVP_MD_CTX *c = EVP_MD_CTX_new();
-    unsigned char *buf = avow_malloc(1 << 20);
-    if (!c || !buf || EVP_DigestInit_ex(c, EVP_sha256(), NULL) != 1) {
-        EVP_MD_CTX_free(c); avow_free(buf); close(fd);
+    if (!c || EVP_DigestInit_ex(c, EVP_sha256(), NULL) != 1) {
+        EVP_MD_CTX_free(c); close(fd);
         return AVOW_ENOMEM;
     }
     int rc = AVOW_OK;
     for (;;) {
-        ssize_t got = read(fd, buf, 1 << 20);
+        ssize_t got = read(fd, buf, size);
         if (got < 0) { if (errno == EINTR) continue; rc = AVOW_EIO; break; }
         if (got == 0) break;
         EVP_DigestUpdate(c, buf, (size_t)got);
@@ -62,8 +74,18 @@ int eval_sha256_file(const char *path, char *hex)
     }
     int e = errno;
     EVP_MD_CTX_free(c);
-    avow_free(buf);
     close(fd);
+    errno = e;
+    return rc;
+}
+
+int eval_sha256_file(const char *path, char *hex)
+{
+    unsigned char *buf = avow_malloc(HASH_BLOCK);
+    if (!buf) return AVOW_ENOMEM;
+    int rc = sha256_file_with(path, buf, HASH_BLOCK, hex);
+    int e = errno;
+    avow_free(buf);
     errno = e;
     return rc;
 }
@@ -73,6 +95,9 @@ int eval_sha256_file(const char *path, char *hex)
 struct eval_hash_job {
     pthread_t thread;       /* the hashing thread */
     const char *path;       /* the file */
+    unsigned char *buf;     /* read buffer, allocated by the caller's thread: the
+                               allocation hook (avow_mem_fail_after) counts only there */
+    size_t size;            /* its bytes */
     char hex[65];           /* its digest when done */
     int rc;                 /* eval_sha256_file's status */
     int err;                /* errno on failure */
@@ -82,7 +107,7 @@ struct eval_hash_job {
 static void *hash_main(void *arg)
 {
     eval_hash_job *j = arg;
-    j->rc = eval_sha256_file(j->path, j->hex);
+    j->rc = sha256_file_with(j->path, j->buf, j->size, j->hex);
     j->err = errno;
     return NULL;
 }
@@ -91,6 +116,13 @@ eval_hash_job *eval_sha256_start(const char *path)
 {
     eval_hash_job *j = avow_calloc(1, sizeof *j);
     if (!j) return NULL;
+    /* a small file needs no megabyte of buffer */
+    struct stat st;
+    j->size = HASH_BLOCK;
+    if (stat(path, &st) == 0 && S_ISREG(st.st_mode) && st.st_size >= 0 && (uint64_t)st.st_size < j->size)
+        j->size = (size_t)st.st_size + 1 > 4096 ? (size_t)st.st_size + 1 : 4096;
+    j->buf = avow_malloc(j->size);
+    if (!j->buf) { avow_free(j); return NULL; }
     j->path = path;
     j->started = pthread_create(&j->thread, NULL, hash_main, j) == 0;
     return j;
@@ -103,6 +135,7 @@ int eval_sha256_join(eval_hash_job *j, char *hex)
     else hash_main(j);
     int rc = j->rc;
     if (rc == AVOW_OK) memcpy(hex, j->hex, 65);
+    avow_free(j->buf);
     errno = j->err;
     avow_free(j);
     return rc;
@@ -269,17 +302,41 @@ static int is_missing(const missing_set *m, const char *s, size_t n)
     return 0;
 }
 
-/* Append a field's text for a message, shortened and with control bytes replaced. */
+/* Append a field's text for a message: at most 40 characters, cut at a character
+ * boundary, with control characters (C0, DEL, C1) and bytes that are not UTF-8 shown as
+ * '?', so that a message is valid UTF-8 and cannot drive a terminal. */
 static void put_field(strbuf *b, const char *s, size_t n)
 {
+    const unsigned char *u = (const unsigned char *)s;
     sb_putc(b, '"');
-    size_t shown = n > 40 ? 40 : n;
-    for (size_t i = 0; i < shown; i++) {
-        unsigned char c = (unsigned char)s[i];
-        sb_putc(b, (c < 0x20 || c == 0x7f) ? '?' : (char)c);
+    size_t i = 0;
+    for (int shown = 0; i < n && shown < 40; shown++) {
+        int l = utf8_seq_len(u + i, n - i);
+        if (l == 0 || u[i] < 0x20 || u[i] == 0x7f || (l == 2 && u[i] == 0xC2 && u[i + 1] < 0xA0)) {
+            sb_putc(b, '?');
+            i += l ? (size_t)l : 1;
+        } else {
+            sb_put(b, s + i, (size_t)l);
+            i += (size_t)l;
+        }
     }
-    if (shown < n) sb_puts(b, "...");
+    if (i < n) sb_puts(b, "...");
     sb_putc(b, '"');
+}
+
+/* Why a label cannot be shown in a report (NULL when it can): bytes that are not UTF-8,
+ * or a control character (C0, DEL, C1). */
+static const char *label_fault(const char *s, size_t n)
+{
+    const unsigned char *u = (const unsigned char *)s;
+    for (size_t i = 0; i < n;) {
+        int l = utf8_seq_len(u + i, n - i);
+        if (l == 0) return "is not valid UTF-8";
+        if (u[i] < 0x20 || u[i] == 0x7f || (l == 2 && u[i] == 0xC2 && u[i + 1] < 0xA0))
+            return "holds a control character";
+        i += (size_t)l;
+    }
+    return NULL;
 }
 
 typedef struct read_state {
@@ -418,18 +475,31 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         sb_printf(errs, "%s: error: cannot open the data file: %s\n", shown, strerror(errno));
         return 1;
     }
+    struct stat st;
+    int have_st = fstat(fd, &st) == 0;
+    if (have_st && !is_file_like(st.st_mode)) {
+        sb_printf(errs, "%s: error: %s\n", shown, AVOW_NOT_A_FILE);
+        close(fd);
+        return 1;
+    }
     csv_reader *r = NULL;
     label_map maps[AVOW_MAX_FACTORS + 1];
     memset(maps, 0, sizeof maps);
     missing_set miss = {0};
     long cols[AVOW_MAX_FACTORS + 2];
-    int ok_init = csv_open_fd(fd, res->delimiter, &r) == AVOW_OK && missing_init(&miss, plan);
+    /* A file smaller than the reader's block gets a buffer of its own size (it grows if
+     * the file does): a few hundred bytes of data need no megabyte. */
+    size_t bufsize = CSV_DEFAULT_BUFSIZE;
+    if (have_st && S_ISREG(st.st_mode) && st.st_size >= 0 && (uint64_t)st.st_size < bufsize)
+        bufsize = (size_t)st.st_size + 1 > 4096 ? (size_t)st.st_size + 1 : 4096;
+    int ok_init = csv_open_fd_bufsize(fd, res->delimiter, bufsize, &r) == AVOW_OK && missing_init(&miss, plan);
     for (size_t f = 0; ok_init && f < nf; f++) ok_init = map_init(&maps[f], &plan->factors[f]);
     if (ok_init && has_block) {
         if (plan->block_from_data) ok_init = map_alloc(&maps[nf], 16);
         else ok_init = map_init(&maps[nf], plan->block);
     }
     if (!ok_init) {
+        data->oom = 1;
         sb_printf(errs, "%s: error: out of memory\n", shown);
         csv_close(r);
         for (size_t f = 0; f <= nf; f++) map_free(&maps[f]);
@@ -439,9 +509,12 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
     csv_record rec;
     if (csv_read_header(r, &rec) != AVOW_OK) {
         const csv_error_info *e = csv_error(r);
+        if (e->status == AVOW_ENOMEM) data->oom = 1;
         data_error(&rs, e->line ? e->line : 1, e->col ? e->col : 1, "%s%s",
                    e->status == AVOW_EIO ? "cannot read the data file: " : "the header row: ",
                    e->status == AVOW_EIO ? strerror(e->sys_errno) : e->msg);
+        const char *hint = e->status == AVOW_ESYNTAX ? csv_hint(e->msg) : NULL;
+        if (hint) sb_printf(errs, "  hint: %s\n", hint);
         goto done;
     }
     size_t ncols = rec.nfields;
@@ -470,6 +543,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         if (got == 0) break;
         if (got < 0) {
             const csv_error_info *e = csv_error(r);
+            if (e->status == AVOW_ENOMEM) data->oom = 1;
             if (e->status == AVOW_EIO)
                 data_error(&rs, e->line, e->col, "cannot read the data file: %s", strerror(e->sys_errno));
             else {
@@ -523,6 +597,17 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             const csv_field *bf = &rec.fields[cols[bcol_i]];
             long b = map_find(&maps[nf], bf->ptr, bf->len);
             if (b < 0 && plan->block_from_data) {
+                /* The label is shown in the reports: it must be text that cannot drive a
+                 * terminal or break the JSON report. */
+                const char *why = label_fault(bf->ptr, bf->len);
+                if (why) {
+                    strbuf bb = {0};
+                    put_field(&bb, bf->ptr, bf->len);
+                    data_error(&rs, rec.line, (size_t)cols[bcol_i] + 1, "the label %s of block `%s` %s",
+                               bb.s ? bb.s : "?", plan->block->name, why);
+                    sb_free(&bb);
+                    continue;
+                }
                 if (data->nblocks >= AVOW_MAX_BLOCKS) {
                     data_error(&rs, rec.line, (size_t)cols[bcol_i] + 1, "more than %d blocks in `%s`",
                                AVOW_MAX_BLOCKS, plan->block->name);
@@ -533,6 +618,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
                 if (labels) data->block_labels = labels;
                 if (!labels || !lab || data_grow(data, data->nblocks + 1) != AVOW_OK) {
                     avow_free(lab);
+                    data->oom = 1;
                     data_error(&rs, 0, 0, "out of memory");
                     break;
                 }
@@ -541,6 +627,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
                 data->block_labels[data->nblocks] = lab;
                 if (!map_add(&maps[nf], lab, bf->len, data->nblocks, data->nblocks)) {
                     data->nblocks++;
+                    data->oom = 1;
                     data_error(&rs, 0, 0, "out of memory");
                     break;
                 }
@@ -561,6 +648,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         int pr = dec_parse(yf->ptr, yf->len, &v);
         if (pr == AVOW_OK) {
             if (data->keep && keep_obs(data, v, rec.line, block * data->ncells + cell) != AVOW_OK) {
+                data->oom = 1;
                 data_error(&rs, 0, 0, "out of memory keeping the values for the diagnostics");
                 sb_puts(errs, "  hint: avow run --no-diagnostics keeps only the sums\n");
                 break;
@@ -575,14 +663,22 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
                 continue;
             }
         } else if (pr == AVOW_EOVERFLOW) {
-            /* More digits than 64 bits hold: read it as the nearest double and say so. */
-            char tmp[512];
-            size_t n = yf->len < sizeof tmp - 1 ? yf->len : sizeof tmp - 1;
-            memcpy(tmp, yf->ptr, n);
-            tmp[n] = 0;
+            /* More digits than 64 bits hold: read it as the nearest double and say so
+             * (a long text, hundreds of digits, is copied to the heap: it may still be
+             * within the range of doubles). */
+            char small[512], *tmp = small;
+            if (yf->len >= sizeof small && !(tmp = avow_malloc(yf->len + 1))) {
+                data->oom = 1;
+                data_error(&rs, 0, 0, "out of memory");
+                break;
+            }
+            memcpy(tmp, yf->ptr, yf->len);
+            tmp[yf->len] = 0;
             char *end;
             double d = strtod(tmp, &end);
-            if (n != yf->len || *end || dec_acc_add_double(acc, d) != AVOW_OK) {
+            int whole = *end == 0;
+            if (tmp != small) avow_free(tmp);
+            if (!whole || dec_acc_add_double(acc, d) != AVOW_OK) {
                 strbuf b = {0};
                 put_field(&b, yf->ptr, yf->len);
                 data_error(&rs, rec.line, ycol + 1, "the value %s is out of range", b.s ? b.s : "?");
@@ -592,6 +688,7 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
             avow_dec dv;
             if (data->keep && (dec_from_double(d, &dv) != AVOW_OK
                                || keep_obs(data, dv, rec.line, block * data->ncells + cell) != AVOW_OK)) {
+                data->oom = 1;
                 data_error(&rs, 0, 0, "out of memory keeping the values for the diagnostics");
                 break;
             }
@@ -613,6 +710,8 @@ size_t eval_read(const avow_plan *plan, const char *path, const char *shown, avo
         res->used++;
     }
     if (progress) progress->fn(progress->arg, csv_bytes_read(r), total);
+    if (!rs.nerr && res->rows == 0)
+        data_error(&rs, 0, 0, "the file has a header row but no data rows");
     if (!rs.nerr && plan->saturated) {
         /* The cell-means model needs every cell; a model without some interactions, or with
          * blocks, may do without some (the analysis checks that every term is estimable). */

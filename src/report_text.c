@@ -112,8 +112,9 @@ static void contrast_rows(text_table *t, const avow_contrast_result *rs, size_t 
         table_cell(t, 0, "%s", r->pc->name);
         fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(t, 1, "%s", a);
         fmt_fixed(a, sizeof a, r->se, dec); table_cell(t, 2, "%s", a);
-        table_cell(t, 3, "%.3f", r->t);
-        if (r->df == floor(r->df)) table_cell(t, 4, "%.0f", r->df);
+        fmt_fixed(a, sizeof a, r->t, 3); table_cell(t, 3, "%s", a);   /* "-" when not defined */
+        if (isnan(r->df)) table_cell(t, 4, "-");   /* own-variance df with no variation */
+        else if (r->df == floor(r->df)) table_cell(t, 4, "%.0f", r->df);
         else table_cell(t, 4, "%.1f", r->df);
         fmt_p(a, sizeof a, r->p); table_cell(t, 5, "%s", a);
         fmt_p(a, sizeof a, r->p_adj); table_cell(t, 6, "%s", a);
@@ -161,7 +162,7 @@ static void pair_table(doc *d, const avow_plan *p, const plan_explore *e, const 
         table_cell(&t, 0, "%s - %s", mean_name(p, e, r->a), mean_name(p, e, r->b));
         fmt_fixed(a, sizeof a, r->estimate, dec); table_cell(&t, 1, "%s", a);
         fmt_fixed(a, sizeof a, r->se, dec); table_cell(&t, 2, "%s", a);
-        table_cell(&t, 3, "%.3f", r->stat);
+        fmt_fixed(a, sizeof a, r->stat, 3); table_cell(&t, 3, "%s", a);
         fmt_p(a, sizeof a, r->p_adj); table_cell(&t, 4, "%s", a);
         fmt_fixed(a, sizeof a, r->ci_lo, dec); fmt_fixed(b, sizeof b, r->ci_hi, dec);
         table_cell(&t, 5, "%s to %s", a, b);
@@ -531,12 +532,24 @@ void report_body(doc *d, const avow_ctx *ctx, const avow_plan *p, const avow_res
     fmt_val(c, sizeof c, r->grand_mean);
     doc_p(d, "   R-squared %s; residual standard deviation %s%s%s; grand mean %s\n", a, b,
               unit[0] ? " " : "", unit, c);
-    if (isnan(r->anova[0].f))
-        doc_p(d, "%s", r->fit == FIT_ONEWAY
-                   ? "   Every observation equals its level's mean: there is no residual variation, so F\n"
-                     "   and the contrast tests are not defined.\n"
-                   : "   Every observation equals its fitted value: there is no residual variation, so F\n"
-                     "   and the contrast tests are not defined.\n");
+    if (isnan(r->anova[0].f)) {
+        /* No residual variation: say what F can and cannot say. */
+        int all_equal = 1;
+        for (size_t i = 0; i < nrow; i++)
+            if (r->anova[i].kind != ROW_RESIDUAL && r->anova[i].ss != 0) all_equal = 0;
+        if (all_equal)
+            doc_p(d, "%s", "   Every observation has the same value: the means do not differ at all and there is\n"
+                       "   no residual variation. F is 0/0, so no test is made: the data show no difference,\n"
+                       "   but they cannot say how large a difference the run-to-run noise might hide.\n");
+        else
+            doc_p(d, "%s", r->fit == FIT_ONEWAY
+                       ? "   Every observation equals its level's mean: there is no residual variation, so F\n"
+                         "   and the contrast tests are not defined. The means differ, but with no noise to\n"
+                         "   measure them against the data cannot say whether the difference would recur.\n"
+                       : "   Every observation equals its fitted value: there is no residual variation, so F\n"
+                         "   and the contrast tests are not defined. The means differ, but with no noise to\n"
+                         "   measure them against the data cannot say whether the difference would recur.\n");
+    }
     if (p->nfactors > 1 || p->block) {
         if (r->balanced)
             doc_p(d, "   Balanced data: every cell has the same number of runs, and the rows add up to the total.\n");

@@ -4,10 +4,16 @@
 #   2. the locale changes nothing: LC_ALL=C, C.UTF-8 and a comma-decimal locale
 #      (de_DE.UTF-8, compiled here with localedef into a temporary LOCPATH) give the
 #      same bytes; if no comma-decimal locale can be had, this is said, and counted as
-#      a failure, and C against C.UTF-8 is still compared;
+#      a failure, and C against C.UTF-8 is still compared; nor does the time zone (TZ
+#      unset, UTC, two zones far from it, and a zone that does not exist); the plan
+#      review and the run sheet too;
 #   3. -o FILE writes the bytes of standard output, replaces an existing file by a
 #      rename (a hard link to the old file keeps the old bytes), leaves no temporary
-#      file behind, and leaves an existing file alone when the run fails;
+#      file behind, and leaves an existing file alone when the run fails, whatever
+#      stage fails (the study, the data file, the data, the analysis);
+#   3b. avow opens neither the study nor the data for writing, and creates, renames or
+#      removes nothing but its own temporary file beside -o FILE (traced with strace;
+#      the inputs' bytes and change times are compared in any case);
 #   4. --data FILE analyses FILE, and both reports name it (text, and JSON data.path);
 #   5. the text report holds the study file verbatim, every line numbered, and the
 #      standing caution that a significant difference is no evidence of safety.
@@ -31,7 +37,7 @@ run() {
     if [ "$rc" -ne 0 ] || [ -s "$tmp/err" ]; then bad "avow run $*" "exit status $rc"; cat "$tmp/err"; fi
 }
 
-STUDIES="examples/cure/cure.avow tests/data-errors/study.avow"
+STUDIES="examples/cure/cure.avow tests/data-errors/study.avow examples/coating/coating.avow examples/seedlots/seedlots.avow"
 
 # ---- 1. Twice the same. ----
 i=0
@@ -84,6 +90,31 @@ for s in $STUDIES; do
     done
 done
 
+# Time zones: TZ unset, UTC, far east and west of it, and one that does not exist.
+i=0
+for s in $STUDIES; do
+    i=$((i + 1))
+    for f in text json; do
+        for tz in UTC Pacific/Kiritimati America/Adak Nowhere/Atlantis; do
+            TZ=$tz run "$tmp/$i.$f.tz" "$s" --format "$f"
+            same "TZ unset vs TZ=$tz, $s $f" "$tmp/$i.$f.1" "$tmp/$i.$f.tz"
+        done
+    done
+done
+# The plan review and the run sheet under the same changes of locale and time zone.
+for s in $STUDIES; do
+    "$AVOW" check "$s" >"$tmp/check.1" 2>/dev/null
+    "$AVOW" sheet "$s" >"$tmp/sheet.1" 2>/dev/null || : >"$tmp/sheet.1"
+    for env in "LC_ALL=C" "LC_ALL=C.UTF-8" "TZ=Pacific/Kiritimati" ${comma:+"LC_ALL=$comma"}; do
+        env ${locpath:+LOCPATH="$locpath"} "$env" "$AVOW" check "$s" >"$tmp/check.2" 2>/dev/null
+        same "avow check, $env, $s" "$tmp/check.1" "$tmp/check.2"
+        if [ -s "$tmp/sheet.1" ]; then
+            env ${locpath:+LOCPATH="$locpath"} "$env" "$AVOW" sheet "$s" >"$tmp/sheet.2" 2>/dev/null
+            same "avow sheet, $env, $s" "$tmp/sheet.1" "$tmp/sheet.2"
+        fi
+    done
+done
+
 # ---- 3. -o FILE. ----
 S=examples/cure/cure.avow
 mkdir "$tmp/o"
@@ -112,6 +143,23 @@ cp "$tmp/o/report.text" "$tmp/before"
 rc=$?
 [ "$rc" -eq 2 ] && ok || bad "-o on error" "exit status $rc, want 2"
 same "-o on error leaves the old file" "$tmp/before" "$tmp/o/report.text"
+# Whatever stage fails, the existing file keeps its bytes and no temporary file is left.
+listing_before=$(cd "$tmp/o" && ls -A | tr '\n' ' ')
+printf 'study "t"\nresponse y\nfactor f { a b }\ncontrast x = a - qq\n' >"$tmp/bad-study.avow"
+fail_stage() { # fail_stage NAME WANT-EXIT ARGS...: avow run ARGS -o report.text must fail
+    name=$1; want=$2; shift 2
+    "$AVOW" run "$@" -o "$tmp/o/report.text" >/dev/null 2>&1
+    rc=$?
+    [ "$rc" -eq "$want" ] && ok || bad "-o when $name fails" "exit status $rc, want $want"
+    same "-o when $name fails: the old file keeps its bytes" "$tmp/before" "$tmp/o/report.text"
+    listing=$(cd "$tmp/o" && ls -A | tr '\n' ' ')
+    [ "$listing" = "$listing_before" ] && ok || bad "-o when $name fails" "the folder holds: $listing"
+}
+fail_stage "the study" 1 "$tmp/bad-study.avow" --data examples/cure/cure.csv
+fail_stage "the data file" 2 "$tmp/absent.avow"
+fail_stage "the data" 2 tests/data-errors/study.avow --data tests/data-errors/ragged.csv
+fail_stage "the analysis" 2 tests/data-errors/study.avow --data tests/data-errors/beyond-double.csv
+
 # Writing fails (the target is a folder): an error, and no temporary file is left.
 mkdir "$tmp/o/folder"
 "$AVOW" run "$S" -o "$tmp/o/folder" >"$tmp/stdout" 2>"$tmp/err"
@@ -119,6 +167,67 @@ rc=$?
 [ "$rc" -ne 0 ] && grep -q "cannot write $tmp/o/folder" "$tmp/err" && ok || bad "-o onto a folder" "exit $rc: $(cat "$tmp/err")"
 listing=$(cd "$tmp/o" && ls -A | tr '\n' ' ')
 [ "$listing" = "folder old-link report.json report.text " ] && ok || bad "-o failure leaves no temporary file" "the folder holds: $listing"
+
+# ---- 3b. The inputs are only read. ----
+mkdir "$tmp/ro"
+cp examples/cure/cure.avow examples/cure/cure.csv "$tmp/ro/"
+stamp() { for f in "$tmp/ro/cure.avow" "$tmp/ro/cure.csv"; do sha256sum <"$f"; stat -c '%Y %Z %s %a' "$f"; done; }
+sleep 1   # (change times have one-second resolution on some file systems)
+stamp >"$tmp/stamp.before"
+if command -v strace >/dev/null 2>&1; then
+    only_reads() { # only_reads OUT: the traced command ($tmp/trace) changed nothing but OUT
+        $PY - "$tmp/trace" "$1" <<'PYEOF'
+import re, sys
+out = sys.argv[2]
+bad = []
+for line in open(sys.argv[1]):
+    m = re.match(r'\s*\d+\s+(\w+)\((.*)\)\s+=\s+(-?\d+)', line)
+    if not m or int(m.group(3)) < 0:
+        continue
+    call, args = m.group(1), m.group(2)
+    paths = re.findall(r'"((?:[^"\\]|\\.)*)"', args)
+    mine = lambda p: out and p.startswith(out + ".tmp-")
+    if call in ("open", "openat", "openat2", "creat"):
+        if call == "creat" or re.search(r'O_WRONLY|O_RDWR|O_CREAT|O_TRUNC|O_APPEND', args):
+            if not all(mine(p) for p in paths):
+                bad.append(line.strip())
+    elif call in ("rename", "renameat", "renameat2"):
+        if not (len(paths) == 2 and mine(paths[0]) and paths[1] == out):
+            bad.append(line.strip())
+    elif call in ("unlink", "unlinkat"):
+        if not all(mine(p) for p in paths):
+            bad.append(line.strip())
+    elif call in ("truncate", "chmod", "fchmodat", "chown", "fchownat", "lchown", "link", "linkat",
+                  "symlink", "symlinkat", "mkdir", "mkdirat", "rmdir", "mknod", "mknodat",
+                  "utime", "utimes", "utimensat", "futimesat", "setxattr", "lsetxattr", "removexattr"):
+        bad.append(line.strip())
+for b in bad:
+    print("  changed something: " + b)
+sys.exit(1 if bad else 0)
+PYEOF
+    }
+    traced() { # traced NAME OUT ARGS...: avow ARGS under strace; checks what it changed
+        name=$1; out=$2; shift 2
+        strace -f -qq -e trace=%file,%desc -o "$tmp/trace" "$AVOW" "$@" >/dev/null 2>&1
+        only_reads "$out" && ok || bad "inputs only read: $name" "see above"
+    }
+    traced "check" "" check "$tmp/ro/cure.avow"
+    traced "check --format json" "" check --format json "$tmp/ro/cure.avow"
+    traced "run" "" run "$tmp/ro/cure.avow"
+    traced "run --format json --data" "" run "$tmp/ro/cure.avow" --format json --data "$tmp/ro/cure.csv"
+    traced "run -o" "$tmp/o/traced.txt" run "$tmp/ro/cure.avow" -o "$tmp/o/traced.txt"
+    traced "run -o, failing" "$tmp/o/traced.txt" run "$tmp/ro/cure.avow" --data tests/data-errors/ragged.csv -o "$tmp/o/traced.txt"
+    traced "sheet -o" "$tmp/o/sheet.csv" sheet "$tmp/ro/cure.avow" -o "$tmp/o/sheet.csv"
+    traced "fmt" "" fmt "$tmp/ro/cure.avow"
+    # The check itself must see a write: `fmt -w` of a file that is not canonical.
+    printf 'study "t" response y factor f { a b }\n' >"$tmp/o/messy.avow"
+    strace -f -qq -e trace=%file,%desc -o "$tmp/trace" "$AVOW" fmt -w "$tmp/o/messy.avow" >/dev/null 2>&1
+    only_reads "" >/dev/null && bad "inputs only read" "the trace check did not see fmt -w write its file" || ok
+else
+    echo "NOTE: strace is not installed; only the inputs' bytes and change times are compared"
+fi
+stamp >"$tmp/stamp.after"
+same "the inputs' bytes, times and modes after every command" "$tmp/stamp.before" "$tmp/stamp.after"
 
 # ---- 4. --data FILE. ----
 other="$tmp/other data.csv"   # a space in the name on purpose

@@ -38,6 +38,25 @@ expect bigstring 1 "FILE:3:8: error: factor \`f\` has 1 level; a comparison need
 $PY -c "import sys; sys.stdout.write('study \"t\"\nresponse y\nfactor f {' + ' '.join('l%d' % i for i in range(1001)) + '}\n')" > "$tmp/manylevels.avow"
 expect manylevels 1 "FILE:3:8: error: factor \`f\` has 1001 levels; at most 1000 are supported"
 
+$PY -c "import sys; sys.stdout.write('study \"t\"\nresponse y\nfactor f { a b }\nblock day {' + ' '.join('d%d' % i for i in range(1001)) + '}\n')" > "$tmp/manyblocklevels.avow"
+expect manyblocklevels 1 "FILE:4:7: error: block \`day\` has 1001 levels; at most 1000 are supported"
+
+$PY -c "import sys; sys.stdout.write('$head' + ''.join('contrast c%d = a - b\n' % i for i in range(1001)))" > "$tmp/manycontrasts.avow"
+expect manycontrasts 1 "FILE:4:1: error: 1001 contrasts; at most 1000 are supported"
+
+$PY -c "import sys; sys.stdout.write('study \"t\"\nresponse y\n' + ''.join('factor f%d { a%d b%d }\n' % (i, i, i) for i in range(9)))" > "$tmp/ninefactors.avow"
+expect ninefactors 1 "FILE:11:1: error: a study may cross at most 8 treatment factors"
+
+$PY -c "import sys; sys.stdout.write('study \"t\"\nresponse y\nfactor f {' + ' '.join('a%d' % i for i in range(100)) + '}\nfactor g {' + ' '.join('b%d' % i for i in range(41)) + '}\n')" > "$tmp/manycells.avow"
+expect manycells 1 "FILE:4:1: error: the factors cross into more than 4096 treatment cells"
+
+# Names: a bare name of exactly 255 bytes is fine; quoted names and strings have no limit
+# of their own (the file's size bounds them).
+$PY -c "import sys; sys.stdout.write('$head' + 'contrast ' + 'x'*255 + ' = a - b\n')" > "$tmp/ident255.avow"
+expect ident255 0 ""
+$PY -c "import sys; sys.stdout.write('study \"t\"\nresponse y\nfactor f { \"' + 'x'*(1<<20) + '\" b }\n')" > "$tmp/bigquotedname.avow"
+expect bigquotedname 0 ""
+
 # 64 KiB of pseudo-random bytes from a fixed linear congruential generator.
 $PY -c "
 import sys
@@ -50,6 +69,12 @@ expect binary 1 "FILE:1:1: error: invalid UTF-8 byte 0xE0"
 
 printf '\177ELF\002\001\001\000' > "$tmp/elf.avow"
 expect elf 1 "FILE:1:1: error: unexpected control byte 0x7F"
+
+# The size limit is on bytes: 16 MiB exactly is read, one byte more is not.
+$PY -c "import sys; s = '$head' + 'contrast x = a - b\n'; sys.stdout.write(s + '#' * ((16<<20) - len(s) - 1) + '\n')" > "$tmp/exactlimit.avow"
+expect exactlimit 0 ""
+$PY -c "import sys; s = '$head' + 'contrast x = a - b\n'; sys.stdout.write(s + '#' * ((16<<20) - len(s)) + '\n')" > "$tmp/onebytemore.avow"
+expect onebytemore 1 "avow: cannot read FILE: larger than the 16 MiB a study file may have"
 
 $PY -c "import sys; sys.stdout.write('# ' + 'x'*(17<<20) + '\n')" > "$tmp/toolarge.avow"
 expect toolarge 1 "avow: cannot read FILE: larger than the 16 MiB a study file may have"

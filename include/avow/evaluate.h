@@ -12,6 +12,10 @@
 #include "avow/results.h"
 #include "avow/util.h"
 
+/* Why a data file is refused when it is a device, a pipe or a socket (those may never
+ * end, like /dev/zero, or cannot be read twice). */
+#define AVOW_NOT_A_FILE "the data file is not a regular file (a device, a pipe or a socket)"
+
 /* Most data errors collected before the reader gives up. */
 #define AVOW_MAX_DATA_ERRORS 20
 
@@ -54,6 +58,8 @@ typedef struct avow_data {
     size_t nblocks;         /* blocks seen or declared (1 without a block) */
     size_t cap;             /* blocks allocated */
     char **block_labels;    /* labels of blocks taken from the data (avow_malloc), else NULL */
+    int oom;                /* memory ran out while reading (set by eval_read, whose
+                               errors then say so): not a fault of the data */
 } avow_data;
 
 /* Prepare d for the plan (declared blocks, or one). Returns AVOW_OK or AVOW_ENOMEM. */
