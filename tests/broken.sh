@@ -5,12 +5,12 @@
 # distinct labels) and those with NUL bytes are written here, into a temporary folder
 # that messages show as TMP.
 #
-# Error cases: standard error and exit status equal tests/broken/NAME.expected byte for
-# byte, nothing reaches standard output, standard error is valid UTF-8 without control
-# characters (the data cannot drive a terminal through avow's messages), and the run
-# takes less than 20 seconds.
-# Cases that must succeed: exit 0, nothing on standard error, the row accounting of the
-# JSON report as written in the case, and what the case is about in the text report.
+# Error cases (err) and cases that must succeed (ok) are checked as tests/lib/datacases.sh
+# describes: standard error and exit status equal to tests/broken/NAME.expected byte for
+# byte, valid UTF-8 without control characters (the data cannot drive a terminal through
+# avow's messages), nothing on standard output, under 20 seconds, the same with
+# `--format json -o FILE` and no file left; for a success, the row accounting of the JSON
+# report and what the case is about in the text report.
 # UPDATE=1 rewrites the expected files (read every one of them before committing).
 set -u
 AVOW=${AVOW:-build/avow}
@@ -21,85 +21,7 @@ BS=$D/blocks.avow                   # factor `dose`, block `day` taken from the 
 pass=0; fail=0
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
 
-# clean FILE: valid UTF-8, and no control character but line feeds.
-clean() {
-    $PY - "$1" <<'PYEOF'
-import sys, unicodedata
-b = open(sys.argv[1], "rb").read()
-try:
-    t = b.decode("utf-8")
-except UnicodeDecodeError as e:
-    print("  not valid UTF-8 at byte %d" % e.start); sys.exit(1)
-bad = [c for c in t if c != "\n" and unicodedata.category(c) == "Cc"]
-if bad:
-    print("  control characters: %r" % bad[:5]); sys.exit(1)
-PYEOF
-}
-
-# err NAME EXIT STUDY [ARGS...]: a run that must fail with status EXIT.
-err() {
-    name=$1; want_rc=$2; shift 2
-    exp=$D/$name.expected
-    problems=""
-    start=$(date +%s)
-    timeout 60 "$AVOW" run "$@" >"$tmp/out" 2>"$tmp/raw"
-    rc=$?
-    took=$(($(date +%s) - start))
-    clean "$tmp/raw" >"$tmp/why" || problems="$problems; standard error is not clean text: $(cat "$tmp/why")"
-    echo "exit: $rc" >>"$tmp/raw"
-    sed "s|$tmp/|TMP/|g" "$tmp/raw" >"$tmp/err"
-    if [ "${UPDATE:-0}" = 1 ]; then cp "$tmp/err" "$exp"; fi
-    [ "$rc" -eq "$want_rc" ] || problems="$problems; exit status $rc, not $want_rc"
-    cmp -s "$tmp/err" "$exp" || problems="$problems; standard error differs from $exp"
-    [ -s "$tmp/out" ] && problems="$problems; something was printed on standard output"
-    [ "$took" -lt 20 ] || problems="$problems; took $took s"
-    if [ -z "$problems" ]; then pass=$((pass + 1))
-    else
-        fail=$((fail + 1)); echo "FAIL $name${problems#;}"
-        cmp -s "$tmp/err" "$exp" || diff "$exp" "$tmp/err" | head -20
-    fi
-}
-
-# ok NAME WANT STUDY [ARGS...]: a run that must succeed; WANT is a JSON object of
-# expected data.* members, plus "n": {level: count} and "mean": {level: mean}. The text
-# report is left in $tmp/text.
-ok() {
-    name=$1; want=$2; shift 2
-    "$AVOW" run "$@" --format json >"$tmp/json" 2>"$tmp/err"
-    rc=$?
-    "$AVOW" run "$@" >"$tmp/text" 2>>"$tmp/err"
-    if [ "$rc" -ne 0 ] || [ -s "$tmp/err" ]; then
-        fail=$((fail + 1)); echo "FAIL $name: exit status $rc (want 0), standard error:"; cat "$tmp/err"
-        return
-    fi
-    if $PY - "$tmp/json" "$want" <<'PYEOF'
-import json, sys
-report = json.load(open(sys.argv[1]))
-want = json.loads(sys.argv[2])
-bad = []
-for key, value in want.items():
-    if key == "n":
-        got = {lv["level"]: lv["n"] for lv in report["levels"]}
-    elif key == "mean":
-        got = {lv["level"]: lv["mean"] for lv in report["levels"]}
-    else:
-        got = report["data"].get(key, "(absent)")
-    if got != value:
-        bad.append("data.%s is %s, want %s" % (key, json.dumps(got), json.dumps(value)))
-for b in bad:
-    print("  " + b)
-sys.exit(1 if bad else 0)
-PYEOF
-    then pass=$((pass + 1))
-    else fail=$((fail + 1)); echo "FAIL $name: row accounting"
-    fi
-}
-
-# check NAME WHAT COMMAND...: a plain assertion.
-check() {
-    name=$1; what=$2; shift 2
-    if "$@"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL $name: $what"; fi
-}
+. tests/lib/datacases.sh
 
 # ---- The files must still hold the bytes the cases are about. ----
 bytes() { od -An -tx1 "$1" | tr -d ' \n'; }

@@ -3,13 +3,11 @@
 # data files of tests/data-errors/ (and a few files made here, in a temporary folder that
 # messages show as TMP).
 #
-# Error cases: standard error and exit status must equal tests/data-errors/NAME.expected
-# byte for byte, the exit status must be the one named in the case, nothing may reach
-# standard output, and the same run with `--format json -o FILE` must print the same
-# errors and leave neither FILE nor a temporary file behind.
-# Cases that must succeed: exit 0, nothing on standard error, and the row accounting of
-# the JSON report (data.rows, used, missing, missing_lines, blank_lines, the n of each
-# level) must be the one written in the case.
+# Error cases (err) and cases that must succeed (ok) are checked as tests/lib/datacases.sh
+# describes: the exact standard error and exit status in NAME.expected, clean text,
+# nothing on standard output, the same with `--format json -o FILE` and no file left;
+# for a success, the row accounting of the JSON report (data.rows, used, missing,
+# missing_lines, blank_lines, the n of each level).
 # UPDATE=1 rewrites the expected files (read every one of them before committing).
 set -u
 AVOW=${AVOW:-build/avow}
@@ -18,74 +16,8 @@ D=tests/data-errors
 S=$D/study.avow
 pass=0; fail=0
 tmp=$(mktemp -d); trap 'rm -rf "$tmp"' EXIT
-mkdir "$tmp/o"
 
-# err NAME EXIT STUDY [ARGS...]: a run that must fail with status EXIT.
-err() {
-    name=$1; want_rc=$2; shift 2
-    exp=$D/$name.expected
-    problems=""
-    "$AVOW" run "$@" >"$tmp/out" 2>"$tmp/raw"
-    rc=$?
-    echo "exit: $rc" >>"$tmp/raw"
-    sed "s|$tmp/|TMP/|g" "$tmp/raw" >"$tmp/err"
-    if [ "${UPDATE:-0}" = 1 ]; then cp "$tmp/err" "$exp"; fi
-    [ "$rc" -eq "$want_rc" ] || problems="$problems; exit status $rc, not $want_rc"
-    cmp -s "$tmp/err" "$exp" || problems="$problems; standard error differs from $exp"
-    [ -s "$tmp/out" ] && problems="$problems; something was printed on standard output"
-    # Again as JSON into a file: the same errors, and no file at all afterwards.
-    "$AVOW" run "$@" --format json -o "$tmp/o/report.json" >"$tmp/out" 2>"$tmp/raw"
-    echo "exit: $?" >>"$tmp/raw"
-    sed "s|$tmp/|TMP/|g" "$tmp/raw" >"$tmp/err2"
-    cmp -s "$tmp/err2" "$tmp/err" || problems="$problems; with -o the errors or the status differ"
-    [ -s "$tmp/out" ] && problems="$problems; with -o something was printed on standard output"
-    [ -e "$tmp/o/report.json" ] && problems="$problems; -o wrote a report"
-    left=$(ls -A "$tmp/o")
-    [ -n "$left" ] && problems="$problems; files left in the -o folder: $left"
-    rm -rf "$tmp/o"; mkdir "$tmp/o"
-    if [ -z "$problems" ]; then pass=$((pass + 1))
-    else
-        fail=$((fail + 1)); echo "FAIL $name${problems#;}"
-        cmp -s "$tmp/err" "$exp" || diff "$exp" "$tmp/err" | head -20
-    fi
-}
-
-# ok NAME WANT STUDY [ARGS...]: a run that must succeed. WANT is a JSON object of
-# expected data.* members, plus "n": {level: count}.
-ok() {
-    name=$1; want=$2; shift 2
-    "$AVOW" run "$@" --format json >"$tmp/json" 2>"$tmp/err"
-    rc=$?
-    if [ "$rc" -ne 0 ] || [ -s "$tmp/err" ]; then
-        fail=$((fail + 1)); echo "FAIL $name: exit status $rc (want 0), standard error:"; cat "$tmp/err"
-        return
-    fi
-    if $PY - "$tmp/json" "$want" <<'PYEOF'
-import json, sys
-report = json.load(open(sys.argv[1]))
-want = json.loads(sys.argv[2])
-bad = []
-for key, value in want.items():
-    if key == "n":
-        got = {lv["level"]: lv["n"] for lv in report["levels"]}
-    else:
-        got = report["data"].get(key, "(absent)")
-    if got != value:
-        bad.append("data.%s is %s, want %s" % (key, json.dumps(got), json.dumps(value)))
-for b in bad:
-    print("  " + b)
-sys.exit(1 if bad else 0)
-PYEOF
-    then pass=$((pass + 1))
-    else fail=$((fail + 1)); echo "FAIL $name: row accounting"
-    fi
-}
-
-# check NAME CONDITION-TEXT COMMAND...: a plain assertion (preconditions of the files).
-check() {
-    name=$1; what=$2; shift 2
-    if "$@"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "FAIL $name: $what"; fi
-}
+. tests/lib/datacases.sh
 
 # ---- The files must still hold the bytes the cases are about. ----
 crlf_ok() { [ "$(tr -cd '\r' <"$D/crlf.csv" | wc -c)" -eq "$(wc -l <"$D/crlf.csv")" ]; }

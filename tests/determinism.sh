@@ -43,7 +43,7 @@ STUDIES="examples/cure/cure.avow tests/data-errors/study.avow examples/coating/c
 i=0
 for s in $STUDIES; do
     i=$((i + 1))
-    for f in text json; do
+    for f in text json html; do
         run "$tmp/$i.$f.1" "$s" --format "$f"
         run "$tmp/$i.$f.2" "$s" --format "$f"
         same "repeat $s $f" "$tmp/$i.$f.1" "$tmp/$i.$f.2"
@@ -77,7 +77,7 @@ echo "locales compared: C, C.UTF-8${comma:+ and $comma}${locpath:+ (compiled int
 i=0
 for s in $STUDIES; do
     i=$((i + 1))
-    for f in text json; do
+    for f in text json html; do
         LC_ALL=C run "$tmp/$i.$f.C" "$s" --format "$f"
         LC_ALL=C.UTF-8 run "$tmp/$i.$f.CU" "$s" --format "$f"
         same "LC_ALL=C vs C.UTF-8, $s $f" "$tmp/$i.$f.C" "$tmp/$i.$f.CU"
@@ -94,7 +94,7 @@ done
 i=0
 for s in $STUDIES; do
     i=$((i + 1))
-    for f in text json; do
+    for f in text json html; do
         for tz in UTC Pacific/Kiritimati America/Adak Nowhere/Atlantis; do
             TZ=$tz run "$tmp/$i.$f.tz" "$s" --format "$f"
             same "TZ unset vs TZ=$tz, $s $f" "$tmp/$i.$f.1" "$tmp/$i.$f.tz"
